@@ -551,14 +551,14 @@ int gw_solver_export(const gw_solver *s, const char *prefix, gw_error *err)
     int rc = 0;
     snprintf(path, len, "%s.mtx", prefix);
     FILE *f = fopen(path, "w");
-    if (!f || cholmod_write_sparse(f, s->A, NULL, "gwdivide conductance matrix (lower triangle)", c) < 0)
+    if (!f || cholmod_write_sparse(f, s->A, NULL, NULL, c) < 0)
         rc = gw_fail(err, "cannot write %s", path);
     if (f && fclose(f) != 0 && rc == 0)
         rc = gw_fail(err, "cannot write %s", path);
     if (rc == 0) {
         snprintf(path, len, "%s.rhs.mtx", prefix);
         f = fopen(path, "w");
-        if (!f || cholmod_write_dense(f, s->b, "gwdivide right-hand side", c) < 0)
+        if (!f || cholmod_write_dense(f, s->b, NULL, c) < 0)
             rc = gw_fail(err, "cannot write %s", path);
         if (f && fclose(f) != 0 && rc == 0)
             rc = gw_fail(err, "cannot write %s", path);

@@ -6,6 +6,7 @@ PKGS=(
   build-essential cmake pkg-config
   libsuitesparse-dev libopenblas0-pthread libopenblas-dev
   libpng-dev libcmocka-dev libfyaml-dev libcairo2-dev libgdal-dev gdal-bin
+  libgsl-dev
   python3 python3-numpy python3-scipy python3-gdal
   chromium
 )
