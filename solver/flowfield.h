@@ -10,6 +10,11 @@
 #include "solve.h"
 
 typedef struct {
+    int cell, feature;
+    double q;          /* L^3/T, positive into the aquifer */
+} gw_exchange;
+
+typedef struct {
     gw_grid grid;
     /* Volumetric flux, L^3/T, through cell faces:
      *   qe[k]: from cell k to its east neighbour (negative = westward)
@@ -30,6 +35,11 @@ typedef struct {
     double *sat_thick;
     double *porosity;
     const unsigned char *active;   /* borrowed from the problem */
+    /* Every exchange except positive recharge: one entry per link, well,
+     * fixed-head cell and cell of negative recharge, so analyses can
+     * attribute water to features exactly.  q > 0 enters the aquifer. */
+    gw_exchange *exch;
+    int nexch;
 } gw_flowfield;
 
 int gw_flowfield_compute(const gw_problem *p, const gw_solution *sol, gw_flowfield *f, gw_error *err);

@@ -1,0 +1,141 @@
+#include "results.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+int gw_strlist_add(gw_strlist *l, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    int n = vsnprintf(NULL, 0, fmt, ap);
+    va_end(ap);
+    if (n < 0) return -1;
+    char *s = malloc((size_t)n + 1);
+    if (!s) return -1;
+    va_start(ap, fmt);
+    vsnprintf(s, (size_t)n + 1, fmt, ap);
+    va_end(ap);
+    if (l->n == l->cap) {
+        int cap = l->cap ? 2 * l->cap : 8;
+        char **p = realloc(l->item, (size_t)cap * sizeof *p);
+        if (!p) { free(s); return -1; }
+        l->item = p;
+        l->cap = cap;
+    }
+    l->item[l->n++] = s;
+    return 0;
+}
+
+void gw_strlist_free(gw_strlist *l)
+{
+    for (int i = 0; i < l->n; i++) free(l->item[i]);
+    free(l->item);
+    memset(l, 0, sizeof *l);
+}
+
+void gw_results_init(gw_results *r)
+{
+    memset(r, 0, sizeof *r);
+}
+
+void gw_results_free(gw_results *r)
+{
+    if (!r) return;
+    /* ---- free analysis results here (see results.h) ---- */
+
+    /* ---- end of analysis results ---- */
+    free(r->obs_simulated);
+    if (r->have_budget) gw_budget_free(&r->budget);
+    if (r->have_solution) gw_solution_free(&r->solution);
+    free(r->solver_method);
+    gw_problem_free(r->problem);
+    gw_model_free(r->model);
+    gw_strlist_free(&r->warnings);
+    gw_strlist_free(&r->cautions);
+    memset(r, 0, sizeof *r);
+}
+
+const char *gw_results_feature_name(const gw_results *r, int i)
+{
+    if (!r->problem || i < 0 || i >= r->problem->nfeatures || !r->problem->features[i].name) return "";
+    return r->problem->features[i].name;
+}
+
+int gw_results_observe(gw_results *r, gw_error *err)
+{
+    const gw_model *m = r->model;
+    if (!m || !r->problem || !r->have_solution) return gw_fail(err, "internal error: observations before a solution");
+    r->nobs = m->nobs;
+    if (m->nobs == 0) return 0;
+    r->obs_simulated = malloc((size_t)m->nobs * sizeof *r->obs_simulated);
+    double *obs = malloc((size_t)m->nobs * sizeof *obs);
+    double *sim = malloc((size_t)m->nobs * sizeof *sim);
+    if (!r->obs_simulated || !obs || !sim) {
+        free(obs);
+        free(sim);
+        return gw_fail(err, "out of memory");
+    }
+    int n = 0;
+    for (int i = 0; i < m->nobs; i++) {
+        const gw_obs_spec *o = &m->obs[i];
+        double h = gw_head_at(&r->problem->grid, r->solution.head, o->x, o->y);
+        r->obs_simulated[i] = h;
+        if (isnan(h)) {
+            if (gw_strlist_add(&r->warnings, "observation well %s at (%g, %g) is not inside the active area; "
+                               "no simulated head", o->name, o->x, o->y) != 0)
+                goto oom;
+            continue;
+        }
+        if (!isnan(o->head)) {
+            obs[n] = o->head;
+            sim[n] = h;
+            n++;
+        }
+    }
+    gw_residual_stats_compute(obs, sim, n, &r->obs_stats);
+    free(obs);
+    free(sim);
+    return 0;
+oom:
+    free(obs);
+    free(sim);
+    return gw_fail(err, "out of memory");
+}
+
+int gw_results_check(gw_results *r, gw_error *err)
+{
+    if (r->have_solution) {
+        const gw_solution *s = &r->solution;
+        if (!s->converged &&
+            gw_strlist_add(&r->warnings, "the solution did not converge in %d iterations", s->iterations) != 0)
+            return gw_fail(err, "out of memory");
+        if (s->ndry > 0 &&
+            gw_strlist_add(&r->warnings, "%d cell%s went dry (head at or below the aquifer bottom); "
+                           "results there are not meaningful", s->ndry, s->ndry == 1 ? "" : "s") != 0)
+            return gw_fail(err, "out of memory");
+    }
+    if (r->have_budget && fabs(r->budget.discrepancy_percent) > 1e-3 &&
+        gw_strlist_add(&r->warnings, "the water balance does not close: discrepancy %.3g %%",
+                       r->budget.discrepancy_percent) != 0)
+        return gw_fail(err, "out of memory");
+    return 0;
+}
+
+int gw_results_add_cautions(gw_results *r, gw_error *err)
+{
+    static const char *text[] = {
+        "Screening tool: results support, and do not replace, a site investigation.",
+        "Steady state, two-dimensional flow under Dupuit assumptions (plan view) or per unit width "
+        "(cross-section); no storage, no vertical flow within the aquifer.",
+        "Divides, catchments and capture zones are sensitive to recharge and hydraulic conductivity; "
+        "test how they move with plausible ranges before relying on them.",
+        "Wellhead protection areas and similar decisions are set under local regulation and require "
+        "licensed professional judgement.",
+    };
+    for (size_t i = 0; i < sizeof text / sizeof text[0]; i++)
+        if (gw_strlist_add(&r->cautions, "%s", text[i]) != 0) return gw_fail(err, "out of memory");
+    return 0;
+}

@@ -1,0 +1,299 @@
+#include "track.h"
+
+#include <math.h>
+#include <stdlib.h>
+
+const char *gw_track_end_name(gw_track_end e)
+{
+    switch (e) {
+    case GW_END_NONE: return "none";
+    case GW_END_SINK: return "sink";
+    case GW_END_STOP_CELL: return "stop_cell";
+    case GW_END_BOUNDARY: return "boundary";
+    case GW_END_INACTIVE: return "inactive";
+    case GW_END_STAGNATION: return "stagnation";
+    case GW_END_TIME: return "time";
+    case GW_END_MAX_STEPS: return "max_steps";
+    }
+    return "none";
+}
+
+void gw_track_options_default(gw_track_options *o)
+{
+    o->backward = 0;
+    o->max_time = 0.0;
+    o->max_steps = 0;
+    o->weak = GW_WEAK_THRESHOLD;
+    o->weak_threshold = 0.5;
+    o->stop_mask = NULL;
+    o->record_path = 0;
+}
+
+void gw_track_result_free(gw_track_result *r)
+{
+    if (!r)
+        return;
+    free(r->px);
+    free(r->py);
+    r->px = r->py = NULL;
+    r->npath = r->cap = 0;
+}
+
+/* Face fluxes of cell k in the tracking direction, L^3/T:
+ * fx1 west face, fx2 east face (positive eastward), fy1 south face, fy2
+ * north face (positive northward). */
+typedef struct {
+    double fx1, fx2, fy1, fy2;
+} cell_flux;
+
+static cell_flux face_fluxes(const gw_flowfield *f, int k, double sgn)
+{
+    const gw_grid *g = &f->grid;
+    int col = k % g->nx, row = k / g->nx;
+    cell_flux c;
+    c.fx1 = col > 0 ? f->qe[k - 1] : 0.0;
+    c.fx2 = col + 1 < g->nx ? f->qe[k] : 0.0;
+    c.fy1 = row + 1 < g->ny ? -f->qs[k] : 0.0;
+    c.fy2 = row > 0 ? -f->qs[k - g->nx] : 0.0;
+    c.fx1 *= sgn; c.fx2 *= sgn; c.fy1 *= sgn; c.fy2 *= sgn;
+    return c;
+}
+
+static int usable(const gw_flowfield *f, int k)
+{
+    return f->active[k] && f->sat_thick[k] > 0.0 && f->porosity[k] > 0.0;
+}
+
+/* Time for a particle at p (distance from face 1, 0 <= p <= len) to leave
+ * the cell along one axis, with velocity v1 at face 1 and v2 at face 2;
+ * *dir = +1 (face 2) or -1 (face 1).  HUGE_VAL when it cannot leave. */
+static double exit_time(double v1, double v2, double len, double p, double *dir)
+{
+    double a = (v2 - v1) / len;
+    double vp = v1 + a * p;
+    double dist, z;
+    *dir = 0.0;
+    if (vp > 0.0) {
+        if (v2 <= 0.0)
+            return HUGE_VAL;
+        *dir = 1.0;
+        dist = len - p;
+    } else if (vp < 0.0) {
+        if (v1 >= 0.0)
+            return HUGE_VAL;
+        *dir = -1.0;
+        dist = -p;
+    } else {
+        return HUGE_VAL;
+    }
+    /* v_face / v_p = 1 + a dist / vp; log1p keeps precision when a -> 0. */
+    z = a * dist / vp;
+    if (fabs(z) < 1e-12)
+        return dist / vp;
+    if (z <= -1.0)
+        return HUGE_VAL;
+    return log1p(z) / a;
+}
+
+/* Position after time t from p with linear velocity v1 + a s. */
+static double advance(double v1, double v2, double len, double p, double t)
+{
+    double a = (v2 - v1) / len;
+    double vp = v1 + a * p;
+    double at = a * t;
+    double np = fabs(at) < 1e-12 ? p + vp * t : p + vp * expm1(at) / a;
+    if (np < 0.0) np = 0.0;
+    if (np > len) np = len;
+    return np;
+}
+
+static int push_vertex(gw_track_result *r, double x, double y, gw_error *err)
+{
+    if (r->npath == r->cap) {
+        int nc = r->cap ? 2 * r->cap : 64;
+        double *nx = realloc(r->px, (size_t)nc * sizeof *nx);
+        if (!nx)
+            return gw_fail(err, "out of memory recording a path");
+        r->px = nx;
+        double *ny = realloc(r->py, (size_t)nc * sizeof *ny);
+        if (!ny)
+            return gw_fail(err, "out of memory recording a path");
+        r->py = ny;
+        r->cap = nc;
+    }
+    r->px[r->npath] = x;
+    r->py[r->npath] = y;
+    r->npath++;
+    return 0;
+}
+
+void gw_track_velocity(const gw_flowfield *f, double x, double y, double *vx, double *vy)
+{
+    const gw_grid *g = &f->grid;
+    int col, row;
+    *vx = *vy = 0.0;
+    if (gw_grid_locate(g, x, y, &col, &row) != 0)
+        return;
+    int k = row * g->nx + col;
+    if (!usable(f, k))
+        return;
+    cell_flux c = face_fluxes(f, k, 1.0);
+    double bn = f->sat_thick[k] * f->porosity[k];
+    double px = x - (g->x0 + col * g->dx), py = y - (gw_grid_ytop(g) - (row + 1) * g->dy);
+    double tx = px / g->dx, ty = py / g->dy;
+    *vx = ((1.0 - tx) * c.fx1 + tx * c.fx2) / (g->dy * bn);
+    *vy = ((1.0 - ty) * c.fy1 + ty * c.fy2) / (g->dx * bn);
+}
+
+/* Decide whether a path stops on entering (or starting in) cell k.
+ * Returns the end reason or GW_END_NONE; updates the weak-sink record. */
+static gw_track_end check_cell(const gw_flowfield *f, int k, const gw_track_options *o,
+                               double sgn, gw_track_result *r)
+{
+    if (!usable(f, k))
+        return GW_END_INACTIVE;
+    if (o->stop_mask && o->stop_mask[k]) {
+        r->end_fraction = 1.0;
+        return GW_END_STOP_CELL;
+    }
+    double s = o->backward ? f->src[k] : f->sink[k];
+    double other = o->backward ? f->sink[k] : f->src[k];
+    if (!(s > 0.0))
+        return GW_END_NONE;
+    cell_flux c = face_fluxes(f, k, sgn);
+    double qin = 0.0;
+    int hasout = 0;
+    if (c.fx1 > 0) qin += c.fx1; else if (c.fx1 < 0) hasout = 1;
+    if (c.fx2 < 0) qin -= c.fx2; else if (c.fx2 > 0) hasout = 1;
+    if (c.fy1 > 0) qin += c.fy1; else if (c.fy1 < 0) hasout = 1;
+    if (c.fy2 < 0) qin -= c.fy2; else if (c.fy2 > 0) hasout = 1;
+    double thru = other + qin;
+    double frac = thru > 0.0 ? s / thru : 1.0;
+    if (frac > 1.0)
+        frac = 1.0;
+    int stop = !hasout;
+    switch (o->weak) {
+    case GW_WEAK_STOP: stop = 1; break;
+    case GW_WEAK_PASS: break;
+    case GW_WEAK_THRESHOLD: stop = stop || frac >= o->weak_threshold; break;
+    }
+    if (stop) {
+        r->end_fraction = frac;
+        return GW_END_SINK;
+    }
+    r->weak_passed++;
+    r->retained *= 1.0 - frac;
+    return GW_END_NONE;
+}
+
+int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *o,
+             gw_track_result *r, gw_error *err)
+{
+    const gw_grid *g = &f->grid;
+    gw_track_options def;
+    if (!o) {
+        gw_track_options_default(&def);
+        o = &def;
+    }
+    double *keep_x = r->px, *keep_y = r->py;
+    int keep_cap = r->cap;
+    *r = (gw_track_result){.end = GW_END_NONE, .x = x, .y = y, .cell = -1, .feature = -1,
+                           .retained = 1.0, .px = keep_x, .py = keep_y, .cap = keep_cap};
+    long max_steps = o->max_steps > 0 ? o->max_steps : 4L * (g->nx + g->ny) + 1000;
+    double sgn = o->backward ? -1.0 : 1.0;
+    int col, row;
+    if (o->record_path && push_vertex(r, x, y, err) != 0)
+        return -1;
+    if (gw_grid_locate(g, x, y, &col, &row) != 0) {
+        r->end = GW_END_BOUNDARY;
+        return 0;
+    }
+    int k = row * g->nx + col;
+    r->cell = k;
+    gw_track_end e = check_cell(f, k, o, sgn, r);
+    const double ytop = gw_grid_ytop(g);
+    double px = x - (g->x0 + col * g->dx), py = y - (ytop - (row + 1) * g->dy);
+    if (px < 0) px = 0;
+    if (px > g->dx) px = g->dx;
+    if (py < 0) py = 0;
+    if (py > g->dy) py = g->dy;
+
+    while (e == GW_END_NONE) {
+        if (r->steps >= max_steps) {
+            e = GW_END_MAX_STEPS;
+            break;
+        }
+        cell_flux c = face_fluxes(f, k, sgn);
+        double bn = f->sat_thick[k] * f->porosity[k];
+        double vx1 = c.fx1 / (g->dy * bn), vx2 = c.fx2 / (g->dy * bn);
+        double vy1 = c.fy1 / (g->dx * bn), vy2 = c.fy2 / (g->dx * bn);
+        double dirx, diry;
+        double tx = exit_time(vx1, vx2, g->dx, px, &dirx);
+        double ty = exit_time(vy1, vy2, g->dy, py, &diry);
+        double t = tx < ty ? tx : ty;
+        double remain = o->max_time > 0 ? o->max_time - r->time : HUGE_VAL;
+        if (t == HUGE_VAL && remain == HUGE_VAL) {
+            /* Cannot leave: the water ends here, in a sink or stagnant. */
+            double s = o->backward ? f->src[k] : f->sink[k];
+            if (s > 0.0) {
+                e = GW_END_SINK;
+                if (r->end_fraction == 0.0) r->end_fraction = 1.0;
+            } else {
+                e = GW_END_STAGNATION;
+            }
+            break;
+        }
+        if (remain <= t) {
+            double nx = advance(vx1, vx2, g->dx, px, remain);
+            double ny = advance(vy1, vy2, g->dy, py, remain);
+            r->length += hypot(nx - px, ny - py);
+            px = nx;
+            py = ny;
+            r->time += remain;
+            e = GW_END_TIME;
+            break;
+        }
+        /* Leave through the face reached first (both at a corner). */
+        int exit_x = tx <= ty * (1.0 + 1e-12);
+        int exit_y = ty <= tx * (1.0 + 1e-12);
+        double nx = exit_x ? (dirx > 0 ? g->dx : 0.0) : advance(vx1, vx2, g->dx, px, t);
+        double ny = exit_y ? (diry > 0 ? g->dy : 0.0) : advance(vy1, vy2, g->dy, py, t);
+        r->length += hypot(nx - px, ny - py);
+        r->time += t;
+        r->steps++;
+        int ncol = col + (exit_x ? (int)dirx : 0);
+        int nrow = row - (exit_y ? (int)diry : 0);   /* north = row - 1 */
+        if (o->record_path &&
+            push_vertex(r, g->x0 + col * g->dx + nx, ytop - (row + 1) * g->dy + ny, err) != 0)
+            return -1;
+        if (ncol < 0 || ncol >= g->nx || nrow < 0 || nrow >= g->ny) {
+            px = nx;
+            py = ny;
+            e = GW_END_BOUNDARY;
+            break;
+        }
+        int nk = nrow * g->nx + ncol;
+        if (!usable(f, nk)) {
+            px = nx;
+            py = ny;
+            e = GW_END_INACTIVE;
+            break;
+        }
+        /* Same point in the new cell's local coordinates. */
+        if (exit_x) px = dirx > 0 ? 0.0 : g->dx; else px = nx;
+        if (exit_y) py = diry > 0 ? 0.0 : g->dy; else py = ny;
+        col = ncol;
+        row = nrow;
+        k = nk;
+        r->cell = k;
+        e = check_cell(f, k, o, sgn, r);
+    }
+    r->end = e;
+    r->x = g->x0 + col * g->dx + px;
+    r->y = ytop - (row + 1) * g->dy + py;
+    if (!o->backward && (e == GW_END_SINK || e == GW_END_STOP_CELL) && f->sink_feature)
+        r->feature = f->sink_feature[k];
+    if (o->record_path && e != GW_END_NONE && push_vertex(r, r->x, r->y, err) != 0)
+        return -1;
+    return 0;
+}

@@ -1,0 +1,156 @@
+/* `gwdivide run`: read, build, solve, budget, analyse, write.  Every stage
+ * returns an error value; this file turns them into one message and an exit
+ * status.  Outputs are staged (io/outdir.h) so a failed run writes nothing. */
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+#include "../../io/budget_csv.h"
+#include "../../io/heads_tif.h"
+#include "../../io/model.h"
+#include "../../io/outdir.h"
+#include "../../io/report_json.h"
+#include "../../io/results.h"
+#include "cli.h"
+
+double gw_now(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_MONOTONIC, &ts);
+    return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+char *gw_default_out_dir(const char *model_path)
+{
+    const char *slash = strrchr(model_path, '/');
+    const char *base = slash ? slash + 1 : model_path;
+    size_t dirlen = slash ? (size_t)(slash - model_path) : 0;
+    size_t baselen = strlen(base);
+    const char *dot = strrchr(base, '.');
+    if (dot && dot != base && (!strcmp(dot, ".yaml") || !strcmp(dot, ".yml"))) baselen = (size_t)(dot - base);
+    size_t n = dirlen + baselen + 16;
+    char *s = malloc(n);
+    if (!s) return NULL;
+    if (slash)
+        snprintf(s, n, "%.*s/%.*s-results", (int)(dirlen ? dirlen : 1), dirlen ? model_path : "/",
+                 (int)baselen, base);
+    else
+        snprintf(s, n, "%.*s-results", (int)baselen, base);
+    return s;
+}
+
+static void apply_solver_settings(const gw_model *m, gw_solve_options *o)
+{
+    gw_solve_options_default(o);
+    if (m->head_tol > 0) o->head_tol = m->head_tol;
+    if (m->resid_tol > 0) o->resid_tol = m->resid_tol;
+    if (m->max_iter > 0) o->max_iter = m->max_iter;
+}
+
+/* Solve, export the matrix if asked, keep the solver's description. */
+static int solve_stage(gw_results *r, const gw_run_args *a, gw_error *err)
+{
+    gw_solve_options opt;
+    apply_solver_settings(r->model, &opt);
+    gw_solver *s = gw_solver_new(r->problem, &opt, err);
+    if (!s) return -1;
+    r->have_solution = 1;   /* arrays, once allocated, are freed with r */
+    int rc = gw_solver_run(s, r->problem, NULL, &r->solution, err);
+    if (rc == 0 && a->export_prefix && gw_solver_export(s, a->export_prefix, err) != 0) {
+        gw_fail_prefix(err, "--export-matrix: ");
+        rc = -1;
+    }
+    const char *d = gw_solver_describe(s);
+    if (d) r->solver_method = strdup(d);
+    gw_solver_free(s);
+    return rc;
+}
+
+/* Write every output into the staged folder, then move them into place. */
+static int write_outputs(gw_results *r, const char *out_dir, gw_error *err)
+{
+    gw_outdir *o = gw_outdir_open(out_dir, err);
+    if (!o) return -1;
+    const char *path;
+    int rc = -1;
+    char desc[96];
+    snprintf(desc, sizeof desc, "head (%s)", r->model->length_unit ? r->model->length_unit : "");
+
+    if (!(path = gw_outdir_path(o, "budget.csv", err)) || gw_budget_csv_save(r, path, err) != 0) goto fail;
+    if (!(path = gw_outdir_path(o, "heads.tif", err)) ||
+        gw_write_grid_tif(path, &r->problem->grid, r->solution.head,
+                          r->problem->type == GW_SECTION ? NULL : r->model->crs, desc, err) != 0)
+        goto fail;
+    /* ---- further outputs (maps, GIS layers of divides, catchments,
+     *      capture zones, contours) go here, each written to
+     *      gw_outdir_path(o, NAME) ---- */
+
+    /* report.json last: it is the file other programs look for first. */
+    if (!(path = gw_outdir_path(o, "report.json", err)) || gw_report_json_save(r, path, err) != 0) goto fail;
+    rc = gw_outdir_commit(o, err);
+    gw_outdir_free(o);
+    return rc;
+fail:
+    gw_outdir_abort(o);
+    gw_outdir_free(o);
+    return -1;
+}
+
+int gw_cmd_run(const gw_run_args *a)
+{
+    gw_error err = {{0}};
+    gw_results r;
+    gw_results_init(&r);
+    char *out_dir = NULL;
+    int status = GW_EXIT_REJECTED;
+    double t0 = gw_now(), t;
+
+    t = gw_now();
+    r.model = gw_model_load(a->model_path, &err);
+    r.timing.read = gw_now() - t;
+    if (!r.model) goto fail;
+    if (gw_crs_check(r.model->crs, &err) != 0) {
+        gw_fail_prefix(&err, "%s: ", a->model_path);
+        goto fail;
+    }
+
+    t = gw_now();
+    r.problem = gw_model_build(r.model, &err);
+    r.timing.build = gw_now() - t;
+    if (!r.problem) goto fail;
+
+    t = gw_now();
+    if (solve_stage(&r, a, &err) != 0) goto fail;
+    r.timing.solve = gw_now() - t;
+
+    t = gw_now();
+    if (gw_budget_compute(r.problem, &r.solution, &r.budget, &err) != 0) goto fail;
+    r.have_budget = 1;
+    r.timing.budget = gw_now() - t;
+
+    t = gw_now();
+    if (gw_results_observe(&r, &err) != 0) goto fail;
+    /* ---- analyses (divides, catchments, capture zones, ...) go here,
+     *      each storing its result in r (see io/results.h) ---- */
+    r.timing.analysis = gw_now() - t;
+
+    if (gw_results_check(&r, &err) != 0 || gw_results_add_cautions(&r, &err) != 0) goto fail;
+
+    out_dir = a->out_dir ? strdup(a->out_dir) : gw_default_out_dir(a->model_path);
+    if (!out_dir) { gw_fail(&err, "out of memory"); goto fail; }
+    t = gw_now();
+    if (write_outputs(&r, out_dir, &err) != 0) goto fail;
+    r.timing.outputs = gw_now() - t;
+    r.timing.total = gw_now() - t0;
+
+    if (!a->quiet) gw_print_summary(stdout, &r, out_dir);
+    status = GW_EXIT_OK;
+    goto done;
+fail:
+    fprintf(stderr, "gwdivide: %s\n", err.msg[0] ? err.msg : "failed (no message)");
+done:
+    free(out_dir);
+    gw_results_free(&r);
+    return status;
+}

@@ -1,0 +1,123 @@
+/* The short human summary printed after a run: what was solved, whether the
+ * water balance closes, what each feature does, how well the observation
+ * wells are matched, and what to be careful about. */
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "cli.h"
+
+static const char *type_word(gw_feature_type t)
+{
+    switch (t) {
+    case GW_FEAT_RECHARGE: return "recharge";
+    case GW_FEAT_FIXED_HEAD: return "fixed head";
+    case GW_FEAT_STREAM: return "stream";
+    case GW_FEAT_DRAIN: return "drain";
+    case GW_FEAT_WELL: return "well";
+    case GW_FEAT_LEAKAGE: return "leakage";
+    }
+    return "feature";
+}
+
+static const char *aquifer_word(gw_aquifer_type t)
+{
+    return t == GW_UNCONFINED ? "unconfined" : t == GW_SECTION ? "cross-section" : "confined";
+}
+
+/* What the feature does, in words, from the aquifer's point of view. */
+static void describe(char *buf, size_t n, const gw_feature *ft, const gw_feature_budget *fb, const char *Q)
+{
+    switch (ft->type) {
+    case GW_FEAT_RECHARGE:
+        snprintf(buf, n, "adds %.4g %s", fb->net, Q);
+        return;
+    case GW_FEAT_DRAIN:
+        if (fb->out > 0) snprintf(buf, n, "removes %.4g %s from the aquifer", fb->out, Q);
+        else snprintf(buf, n, "dry: the water table stays below the drain");
+        return;
+    case GW_FEAT_WELL:
+        if (fb->net < 0) snprintf(buf, n, "pumps %.4g %s", -fb->net, Q);
+        else if (fb->net > 0) snprintf(buf, n, "injects %.4g %s", fb->net, Q);
+        else snprintf(buf, n, "idle");
+        return;
+    default:
+        break;
+    }
+    switch (fb->state) {
+    case GW_STATE_GAINING:
+        snprintf(buf, n, "gaining: takes %.4g %s from the aquifer", fb->out, Q);
+        break;
+    case GW_STATE_LOSING:
+        snprintf(buf, n, "losing: gives %.4g %s to the aquifer", fb->in, Q);
+        break;
+    case GW_STATE_MIXED:
+        snprintf(buf, n, "mixed: gains along some reaches, loses along others; net %s %.4g %s",
+                 fb->net < 0 ? "gain" : "loss", fabs(fb->net), Q);
+        break;
+    default:
+        snprintf(buf, n, "no exchange");
+    }
+}
+
+void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir)
+{
+    const gw_model *m = r->model;
+    const gw_problem *p = r->problem;
+    const gw_grid *g = &p->grid;
+    const char *L = m->length_unit ? m->length_unit : "";
+    char Q[64];
+    snprintf(Q, sizeof Q, "%s3/%s", L, m->time_unit ? m->time_unit : "");
+
+    long active = 0;
+    for (size_t k = 0; k < gw_grid_ncells(g); k++) active += p->active[k] != 0;
+
+    fprintf(f, "gwdivide %s: %s\n", GWDIVIDE_VERSION, m->title && *m->title ? m->title : m->path);
+    fprintf(f, "  grid      %d columns x %d rows, cells %g x %g %s, %ld active, %s\n", g->nx, g->ny, g->dx, g->dy,
+            L, active, aquifer_word(p->type));
+    const gw_solution *s = &r->solution;
+    fprintf(f, "  solver    %s in %d iteration%s (%d factorization%s), %.3g s total\n",
+            s->converged ? "converged" : "NOT converged", s->iterations, s->iterations == 1 ? "" : "s",
+            s->factorizations, s->factorizations == 1 ? "" : "s", r->timing.total);
+    const gw_budget *b = &r->budget;
+    fprintf(f, "  balance   in %.6g %s, out %.6g %s, discrepancy %.2g %%\n", b->total_in, Q, b->total_out, Q,
+            b->discrepancy_percent);
+
+    fprintf(f, "\nWater budget by feature (%s; inflow enters the aquifer, outflow leaves it)\n", Q);
+    fprintf(f, "  %-28s %-10s %12s %12s %12s\n", "feature", "type", "inflow", "outflow", "net");
+    for (int i = 0; i < p->nfeatures && i < b->nfeatures; i++) {
+        const gw_feature_budget *fb = &b->feature[i];
+        char words[160];
+        describe(words, sizeof words, &p->features[i], fb, Q);
+        fprintf(f, "  %-28.28s %-10s %12.6g %12.6g %+12.6g  %s\n", gw_results_feature_name(r, i),
+                type_word(p->features[i].type), fb->in, fb->out, fb->net, words);
+    }
+
+    /* ---- analysis summaries (divides, catchments, capture zones) go here ---- */
+
+    if (r->nobs > 0) {
+        fprintf(f, "\nObservation wells (head, %s; residual = observed - simulated)\n", L);
+        for (int i = 0; i < r->nobs; i++) {
+            const gw_obs_spec *o = &m->obs[i];
+            double sim = r->obs_simulated[i];
+            if (isnan(o->head))
+                fprintf(f, "  %-20.20s simulated %10.4f\n", o->name, sim);
+            else
+                fprintf(f, "  %-20.20s observed %10.4f  simulated %10.4f  residual %+8.4f\n", o->name, o->head, sim,
+                        o->head - sim);
+        }
+        if (r->obs_stats.n > 0)
+            fprintf(f, "  %d with observed heads: mean error %+.3g %s, mean absolute error %.3g %s, RMS %.3g %s\n",
+                    r->obs_stats.n, r->obs_stats.mean_error, L, r->obs_stats.mean_abs_error, L,
+                    r->obs_stats.rms_error, L);
+    }
+
+    if (r->warnings.n > 0) {
+        fprintf(f, "\nWarnings\n");
+        for (int i = 0; i < r->warnings.n; i++) fprintf(f, "  - %s\n", r->warnings.item[i]);
+    }
+    fprintf(f, "\nCautions: screening tool; steady state, 2-D Dupuit flow; divides and capture zones are\n"
+               "sensitive to recharge and conductivity; protection areas are a matter for local regulation\n"
+               "and licensed professional judgement (full text in report.json).\n");
+    fprintf(f, "\nResults in %s/ (report.json, budget.csv, heads.tif)\n", out_dir);
+}
