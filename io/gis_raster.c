@@ -329,7 +329,7 @@ int gw_raster_resample(const gw_raster_query *q, const gw_grid *g, const unsigne
         for (int c = 0; c < g->nx; c++) {
             size_t k = (size_t)r * g->nx + c;
             int needed = !need || need[k];
-            double sw = 0.0, swv = 0.0, wnd = 0.0;
+            double sw = 0.0, swv = 0.0, wnd = 0.0, ref = NAN;
             t.n = 0;
             int bad_value = 0;
             double badv = 0.0;
@@ -344,8 +344,13 @@ int gw_raster_resample(const gw_raster_query *q, const gw_grid *g, const unsigne
                     if (isnan(v) || (has_nd && v == nd)) { wnd += w; continue; }
                     switch (q->rule) {
                     case GW_RESAMPLE_GEOMEAN:
+                        /* logs taken relative to the first value, so a cell
+                         * covered by one value gets exactly that value */
                         if (!(v > 0.0)) { bad_value = 1; badv = v; }
-                        else swv += w * log(v);
+                        else {
+                            if (isnan(ref)) ref = v;
+                            swv += w * log(v / ref);
+                        }
                         break;
                     case GW_RESAMPLE_MEAN: swv += w * v; break;
                     case GW_RESAMPLE_MAJORITY:
@@ -358,6 +363,7 @@ int gw_raster_resample(const gw_raster_query *q, const gw_grid *g, const unsigne
             double xc = gw_grid_xc(g, c), yc = gw_grid_yc(g, r);
             if (sw < 0.5 * area) {
                 if (!needed) continue;
+                if (q->missing_ok) { out[k] = NAN; continue; }
                 if (wnd > 0.0 && wnd + sw > 0.5 * area)
                     gw_fail(err, "%s: cell col %d, row %d (x %.10g, y %.10g) lies on nodata in raster %s "
                                  "(%.0f%% of the cell); fill the gap or make the cell inactive",
@@ -376,7 +382,7 @@ int gw_raster_resample(const gw_raster_query *q, const gw_grid *g, const unsigne
                 goto done;
             }
             double v;
-            if (q->rule == GW_RESAMPLE_GEOMEAN) v = exp(swv / sw);
+            if (q->rule == GW_RESAMPLE_GEOMEAN) v = ref * exp(swv / sw);
             else if (q->rule == GW_RESAMPLE_MEAN) v = swv / sw;
             else {
                 /* Largest covered area wins; ties go to the larger value so

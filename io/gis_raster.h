@@ -36,6 +36,7 @@ typedef struct {
     gw_resample_rule rule;
     const char *grid_crs;      /* NULL: the raster is taken as in grid coordinates */
     const char *what;          /* message prefix, e.g. "m.yaml:8:17: aquifer.conductivity" */
+    int missing_ok;            /* masks: cells on nodata or off the raster get NAN, no error */
 } gw_raster_query;
 
 /* Fill out[k] for every cell with need[k] != 0 (every cell when need is

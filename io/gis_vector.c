@@ -187,6 +187,9 @@ static int plan_transform(const gw_vquery *q, OGRLayerH lyr, const char *lname, 
 {
     *ct = NULL;
     OGRSpatialReferenceH lsrs = OGR_L_GetSpatialRef(lyr);   /* owned by the layer */
+    /* GeoPackage stores "no CRS" as one of two placeholder systems. */
+    const char *sname = lsrs ? OSRGetName(lsrs) : NULL;
+    if (sname && !strncmp(sname, "Undefined ", 10)) lsrs = NULL;
     int have_target = q->target_crs && *q->target_crs;
     if (!have_target) {
         if (lsrs && OSRIsGeographic(lsrs))
@@ -369,7 +372,11 @@ int gw_vector_read(const gw_vquery *q, gw_vfeature **out, int *nout, gw_error *e
         if (r != 0) goto done;
     }
     if (CPLGetLastErrorType() >= CE_Failure) {
-        gw_fail(err, "%s: error while reading layer '%s' of %s: %s", what, lname, q->file, gdal_msg());
+        if (q->where && *q->where)   /* some drivers check the filter only when reading */
+            gw_fail(err, "%s: where \"%s\" is not a valid filter for layer '%s' of %s (%s)", what, q->where, lname,
+                    q->file, gdal_msg());
+        else
+            gw_fail(err, "%s: error while reading layer '%s' of %s: %s", what, lname, q->file, gdal_msg());
         goto done;
     }
     if (nf == 0) {

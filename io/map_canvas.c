@@ -128,7 +128,11 @@ char *gw_fmt_num(char *buf, int len, double v, int sig)
     }
     int mag = (int)floor(log10(a));
     int dec = sig - 1 - mag;
-    if (dec < 0) dec = 0;
+    if (dec < 0) {   /* round large numbers to `sig` digits: 487766 -> 488000 */
+        double p = pow(10.0, -dec);
+        v = round(v / p) * p;
+        dec = 0;
+    }
     snprintf(buf, len, "%.*f", dec, v);
     if (dec > 0) {   /* drop trailing zeros */
         char *e = buf + strlen(buf) - 1;

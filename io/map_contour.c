@@ -28,6 +28,15 @@ long gw_contour_index(double level, double interval)
     return lround(level / interval);
 }
 
+int gw_contour_major_every(double interval)
+{
+    if (!(interval > 0)) return 5;
+    double m = interval / pow(10.0, floor(log10(interval) + 1e-9));
+    if (fabs(m - 2.5) < 1e-6) return 4;
+    if (fabs(m - 5.0) < 1e-6) return 2;
+    return 5;
+}
+
 void gw_contour_set_free(gw_contour_set *s)
 {
     if (!s) return;

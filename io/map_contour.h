@@ -32,8 +32,12 @@ int gw_contour_trace(const gw_grid *g, const double *head, double interval,
 
 void gw_contour_set_free(gw_contour_set *s);
 
-/* Index (0, 1, ...) of `level` as a multiple of interval; "major" contours,
- * drawn heavier and always labelled, are those with index % 5 == 0. */
+/* Index (0, 1, ...) of `level` as a multiple of interval. */
 long gw_contour_index(double level, double interval);
+
+/* Every how many intervals a "major" (heavier, labelled first) contour
+ * falls, so that majors land on round values: 5 for intervals 1 and 2
+ * (x 10^k), 4 for 2.5, 2 for 5. */
+int gw_contour_major_every(double interval);
 
 #endif

@@ -33,7 +33,7 @@ int gw_map_page_begin(gw_map_page *pg, const gw_grid *g, int width, const char *
     double ew = g->nx * g->dx, eh = g->ny * g->dy;
     double maph = mapw * eh / ew;
     if (maph > 1.25 * width) maph = 1.25 * width;
-    if (maph < 640 * fs) maph = 640 * fs;   /* room for the legend; a wide grid is centred */
+    if (maph < 690 * fs) maph = 690 * fs;   /* room for the legend; a wide grid is centred */
     int height = (int)ceil(top + maph + bottom);
     if (gw_canvas_init(&pg->cv, width, height, err) != 0) return -1;
     pg->g = g;
@@ -42,7 +42,7 @@ int gw_map_page_begin(gw_map_page *pg, const gw_grid *g, int width, const char *
     pg->panel_x0 = width - panel - 8 * fs;
     pg->panel_x1 = width - 12 * fs;
     pg->legend_y = top + 4 * fs;
-    pg->legend_bottom = height - 190 * fs;
+    pg->legend_bottom = height - 125 * fs;
     gw_labels_init(&pg->labels, pg->cv.fx0 + 2, pg->cv.fy0 + 2, pg->cv.fx1 - 2, pg->cv.fy1 - 2, 3 * fs);
 
     gw_text_style t = gw_map_style(pg, 17, 1);
@@ -274,7 +274,7 @@ int gw_map_place_wells(gw_map_page *pg, const gw_problem *p)
         double x = gw_canvas_px(&pg->cv, w->x), y = gw_canvas_py(&pg->cv, w->y);
         double r = gw_map_well_radius(pg, w->rate, maxq);
         const char *name = (w->feature >= 0 && w->feature < p->nfeatures) ? p->features[w->feature].name : "well";
-        if (gw_map_point_label(pg, x, y, r + 4 * pg->fs, name, &st) < 0) return -1;
+        if (gw_map_point_label(pg, x, y, r + 7 * pg->fs, name, &st) < 0) return -1;
     }
     return 0;
 }
@@ -391,7 +391,7 @@ static void draw_north_and_scale(gw_map_page *pg, const char *unit)
     cairo_t *cr = c->cr;
     double fs = pg->fs;
     /* North arrow: the grid's y axis points north (map coordinates). */
-    double ax = pg->panel_x0 + 26 * fs, ay = c->height - 170 * fs;
+    double ax = pg->panel_x1 - 44 * fs, ay = c->height - 100 * fs;
     cairo_new_path(cr);
     cairo_move_to(cr, ax, ay - 26 * fs);
     cairo_line_to(cr, ax + 11 * fs, ay + 14 * fs);
@@ -414,7 +414,7 @@ static void draw_north_and_scale(gw_map_page *pg, const char *unit)
     gw_canvas_text(c, ax, ay - 28 * fs, "N", &st);
 
     /* Scale bar: a round length no wider than the panel. */
-    double maxpx = (pg->panel_x1 - pg->panel_x0) - 40 * fs;
+    double maxpx = (pg->panel_x1 - pg->panel_x0) - 110 * fs;
     double len = gw_contour_nice_interval(0, maxpx / c->scale, 1);
     while (len * c->scale > maxpx) len /= 2;
     double px = len * c->scale;

@@ -310,7 +310,7 @@ static int place_feature_names(gw_map_page *pg, const gw_problem *p, const gw_ma
                 double dx = pxy[2 * bb] - pxy[2 * a], dy = pxy[2 * bb + 1] - pxy[2 * a + 1];
                 double L = hypot(dx, dy);
                 double nx = L > 0 ? -dy / L : 0, ny = L > 0 ? dx / L : 0;
-                double off = side * (0.5 * h + 8 * pg->fs);
+                double off = side * (0.5 * h + 11 * pg->fs);
                 q[2 * k] = pxy[2 * k] + nx * off;
                 q[2 * k + 1] = pxy[2 * k + 1] + ny * off;
             }
@@ -385,7 +385,7 @@ static void draw_colour_bar(gw_map_page *pg, const range *r, double interval, co
     gw_map_canvas *c = &pg->cv;
     cairo_t *cr = c->cr;
     double fs = pg->fs;
-    double bx = pg->panel_x0 + 8 * fs, by = pg->legend_y + 4 * fs, bw = 24 * fs, bh = 190 * fs;
+    double bx = pg->panel_x0 + 8 * fs, by = pg->legend_y + 4 * fs, bw = 24 * fs, bh = 165 * fs;
     for (int i = 0; i < (int)bh; i++) {
         double rgb[3];
         gw_ramp_rgb(1.0 - (i + 0.5) / bh, rgb);
@@ -481,7 +481,7 @@ int gw_map_head_write(const gw_problem *p, const double *head, const gw_budget *
         } else {
             snprintf(txt, sizeof txt, "%s", o->name ? o->name : "obs");
         }
-        if (gw_map_point_label(&pg, x, y, 9 * fs, txt, &ost) < 0) goto oom;
+        if (gw_map_point_label(&pg, x, y, 12 * fs, txt, &ost) < 0) goto oom;
     }
     if (place_feature_names(&pg, p, l) != 0) goto oom;
 
@@ -497,7 +497,7 @@ int gw_map_head_write(const gw_problem *p, const double *head, const gw_budget *
         }
         pl[i].n = cs.line[i].n;
         pl[i].level = cs.line[i].level;
-        pl[i].major = gw_contour_index(cs.line[i].level, interval) % 5 == 0;
+        pl[i].major = gw_contour_index(cs.line[i].level, interval) % gw_contour_major_every(interval) == 0;
     }
     int first_label = pg.ntext;
     gw_text_style cst = gw_map_style(&pg, 9, 0);
@@ -565,7 +565,10 @@ int gw_map_head_write(const gw_problem *p, const double *head, const gw_budget *
         if (t == GW_FEAT_STREAM) have_stream_geom = 1;
     }
     gw_map_legend_heading(&pg, "Features");
-    legend_line(&pg, "Contour (heavy: every 5th)", (const double[3]){0.1, 0.1, 0.12}, 1.4 * fs, NULL, 0);
+    char major_txt[96], mb[32];
+    snprintf(major_txt, sizeof major_txt, "Contour (heavy every %s %s)",
+             gw_fmt_num(mb, sizeof mb, interval * gw_contour_major_every(interval), 6), lu);
+    legend_line(&pg, major_txt, (const double[3]){0.1, 0.1, 0.12}, 1.4 * fs, NULL, 0);
     if (sc.gaining_seen || (have_stream_geom && !b))
         legend_line(&pg, "Gaining stream (width: rate)", GAIN_RGB, 5 * fs, NULL, 0);
     if (sc.losing_seen) legend_line(&pg, "Losing stream (width: rate)", LOSE_RGB, 4.5 * fs, LOSE_CASE, 0);
@@ -600,7 +603,7 @@ int gw_map_head_write(const gw_problem *p, const double *head, const gw_budget *
         char txt[128], nb[32];
         double sx, sy;
         if (pump) {
-            snprintf(txt, sizeof txt, "Pumping well, %s %s3/%s", gw_fmt_num(nb, sizeof nb, maxq, 4), lu, tu);
+            snprintf(txt, sizeof txt, "Pumping well, %s %s\u00b3/%s", gw_fmt_num(nb, sizeof nb, maxq, 4), lu, tu);
             gw_map_legend_row(&pg, txt, &sx, &sy);
             gw_map_sym_well(cr, sx, sy, gw_map_well_radius(&pg, maxq, maxq), 0);
         }

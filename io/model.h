@@ -23,6 +23,10 @@ typedef struct {
      * gw_model_resolve_layers() (model_layers.h) reads the geometry.
      * layer_file is resolved relative to the model file; all owned. */
     char *layer_file, *layer_name, *layer_where;
+    int assume_crs;        /* layer without CRS: its coordinates are in grid.crs */
+    /* `name: {field: F}` on the feature: one feature per row of the layer,
+     * named from attribute F (owned; expanded by gw_model_resolve_layers). */
+    char *name_field;
 } gw_path;
 
 /* Per-vertex values along a line: n == 1 is a constant. */
@@ -30,6 +34,7 @@ typedef struct {
     double *v;     /* owned */
     int n;
     gw_src src;
+    char *field;   /* {field: F}: read from attribute F of the feature's layer (owned) */
 } gw_values;
 
 typedef struct {
@@ -80,6 +85,7 @@ typedef struct {
     char *name;
     double x, y;           /* copied from `at` once it is known */
     double pumping;        /* L^3/T, positive withdraws */
+    char *pumping_field;   /* {field: F}: from the layer's attribute F (owned) */
     gw_path at;            /* one vertex; or a layer form until resolved */
     gw_src src;
 } gw_well_spec;
@@ -88,6 +94,7 @@ typedef struct {
     char *name;
     double x, y;           /* copied from `at` once it is known */
     double head;           /* NAN when not given */
+    char *head_field;      /* {field: F}: from the layer's attribute F (owned) */
     gw_path at;
     gw_src src;
 } gw_obs_spec;
@@ -118,6 +125,8 @@ typedef struct {
     gw_aquifer_type aquifer_type;
     gw_property conductivity, thickness, bottom, anisotropy, porosity;
     gw_path active;             /* n == 0: every cell active */
+    char *active_raster;        /* mask raster (non-zero = active, majority per cell); NULL: none */
+    int active_band;
 
     gw_property recharge;       /* rate + zones */
 

@@ -8,7 +8,7 @@
 #include "model.h"
 
 #include "../solver/rasterize.h"
-#include "raster_read.h"
+#include "gis_raster.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -59,7 +59,13 @@ static int fill_property(const gw_model *m, const gw_property *prop, const char 
     if (prop->kind == GW_PROP_RASTER) {
         char what[512];
         snprintf(what, sizeof what, "%s:%d:%d: %s", AT(prop->src), name);
-        if (gw_raster_sample(prop->raster, prop->band, prop->scale, g, active, v, what, err) < 0) return -1;
+        /* Conductivity-like properties average geometrically, the rest by
+         * area (gis_raster.h states why). */
+        gw_raster_query q = { prop->raster, prop->band, prop->scale,
+                              (prop == &m->conductivity || prop == &m->anisotropy) ? GW_RESAMPLE_GEOMEAN
+                                                                                   : GW_RESAMPLE_MEAN,
+                              m->aquifer_type == GW_SECTION ? NULL : m->crs, what, 0 };
+        if (gw_raster_resample(&q, g, active, v, err) < 0) return -1;
     } else if (prop->kind == GW_PROP_ZONES && prop->nzones > 0) {
         unsigned char *mask = malloc(n);
         if (!mask) return gw_fail(err, "out of memory placing %s zones", name);
@@ -249,6 +255,21 @@ static int build_cells(const gw_model *m, gw_problem *p, gw_error *err)
         memset(p->active, 0, n);
         if (gw_rasterize_polygon(g, m->active.xy, m->active.n, p->active, 1) == 0)
             return gw_fail(err, "%s:%d:%d: aquifer.active polygon contains no cell centre", AT(m->active.src));
+    }
+    if (m->active_raster) {   /* mask raster: majority of each cell, nodata or outside = inactive */
+        double *mask = malloc(n * sizeof *mask);
+        if (!mask) return gw_fail(err, "out of memory");
+        gw_raster_query q = { m->active_raster, m->active_band, 1.0, GW_RESAMPLE_MAJORITY,
+                              m->aquifer_type == GW_SECTION ? NULL : m->crs, "aquifer.active.raster", 1 };
+        int rc = gw_raster_resample(&q, g, NULL, mask, err);
+        size_t on = 0;
+        for (size_t k = 0; rc == 0 && k < n; k++) {
+            if (!(isfinite(mask[k]) && mask[k] != 0.0)) p->active[k] = 0;
+            on += p->active[k];
+        }
+        free(mask);
+        if (rc < 0) return -1;
+        if (on == 0) return gw_fail(err, "aquifer.active.raster %s leaves no active cell", m->active_raster);
     }
     if (fill_property(m, &m->conductivity, "aquifer.conductivity", C_POSITIVE, p->active, p->k, err) < 0 ||
         fill_property(m, &m->anisotropy, "aquifer.anisotropy", C_POSITIVE, p->active, p->anis, err) < 0 ||

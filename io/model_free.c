@@ -9,6 +9,7 @@ static void path_free(gw_path *p)
     free(p->layer_file);
     free(p->layer_name);
     free(p->layer_where);
+    free(p->name_field);
 }
 
 static void prop_free(gw_property *p)
@@ -37,10 +38,12 @@ void gw_model_free(gw_model *m)
     prop_free(&m->porosity);
     prop_free(&m->recharge);
     path_free(&m->active);
+    free(m->active_raster);
     for (int i = 0; i < m->nfixed; i++) {
         free(m->fixed[i].name);
         path_free(&m->fixed[i].geom);
         free(m->fixed[i].head.v);
+        free(m->fixed[i].head.field);
     }
     free(m->fixed);
     for (int i = 0; i < m->nstreams; i++) {
@@ -50,6 +53,9 @@ void gw_model_free(gw_model *m)
         free(s->stage.v);
         free(s->bed_bottom.v);
         free(s->bed_conductance.v);
+        free(s->stage.field);
+        free(s->bed_bottom.field);
+        free(s->bed_conductance.field);
     }
     free(m->streams);
     for (int i = 0; i < m->ndrains; i++) {
@@ -58,16 +64,20 @@ void gw_model_free(gw_model *m)
         path_free(&d->line);
         free(d->elevation.v);
         free(d->conductance.v);
+        free(d->elevation.field);
+        free(d->conductance.field);
     }
     free(m->drains);
     for (int i = 0; i < m->nwells; i++) {
         free(m->wells[i].name);
         path_free(&m->wells[i].at);
+        free(m->wells[i].pumping_field);
     }
     free(m->wells);
     for (int i = 0; i < m->nobs; i++) {
         free(m->obs[i].name);
         path_free(&m->obs[i].at);
+        free(m->obs[i].head_field);
     }
     free(m->obs);
     for (int i = 0; i < m->nleakage; i++) {

@@ -12,10 +12,11 @@
 /* Expected shape of a layer geometry. */
 typedef enum { GW_GEOM_POINT = 0, GW_GEOM_LINE, GW_GEOM_POLYGON } gw_geom_kind;
 
-/* Read one geometry of the given kind into p (p->xy, p->n).  The layer
- * filtered by `where` must hold exactly one feature.  Errors name the
- * model file position p->src and `what`. */
-int gw_path_read_layer(gw_path *p, gw_geom_kind kind, const char *what, gw_error *err);
+/* Read one geometry of the given kind into p (p->xy, p->n), reprojected
+ * to `crs` (the grid's; NULL when it has none).  The layer filtered by
+ * `where` must hold exactly one feature.  Errors name the model file
+ * position p->src and `what`. */
+int gw_path_read_layer(gw_path *p, gw_geom_kind kind, const char *crs, const char *what, gw_error *err);
 
 /* Resolve every layer reference in m.  Returns 0, or -1 with err filled. */
 int gw_model_resolve_layers(gw_model *m, gw_error *err);

@@ -3,6 +3,7 @@
  * with its file:line:column, so one `gwdivide check` shows them all. */
 #include "model.h"
 #include "model_check.h"
+#include "gis_raster.h"
 #include "model_layers.h"
 #include "yaml_get.h"
 #include "yaml_tree.h"
@@ -19,6 +20,7 @@
 typedef struct {
     gw_msgs *msgs;
     gw_model *m;
+    char *name_field;   /* `name: {field: F}` of the current feature, until its geometry takes it */
 } P;
 
 typedef enum { C_ANY = 0, C_POSITIVE, C_FRACTION } gw_constraint;
@@ -71,7 +73,18 @@ static int get_file(P *p, const gw_ynode *n, const char *what, char **out)
 
 /* ---- geometry ---------------------------------------------------------- */
 
-static const char *const LAYER_KEYS[] = { "file", "layer", "where", NULL };
+static const char *const LAYER_KEYS[] = { "file", "layer", "where", "assume_crs", NULL };
+
+/* `{field: NAME}`: a value read from an attribute of the feature's layer.
+ * Returns 1 (and *out) when n is such a mapping, 0 when it is not, -1 on a
+ * malformed one. */
+static int field_of(P *p, const gw_ynode *n, const char *what, char **out)
+{
+    static const char *const keys[] = { "field", NULL };
+    if (!n || n->kind != GW_YMAP || !gw_ymap_get(n, "field")) return 0;
+    gw_ycheck_keys(p->msgs, n, what, keys);
+    return gw_yget_string(p->msgs, gw_ymap_get(n, "field"), what, out) < 0 ? -1 : 1;
+}
 
 static int parse_path(P *p, const gw_ynode *n, const char *what, gw_geom_kind kind, gw_path *out)
 {
@@ -86,7 +99,18 @@ static int parse_path(P *p, const gw_ynode *n, const char *what, gw_geom_kind ki
         const gw_ynode *l = gw_ymap_get(n, "layer"), *q = gw_ymap_get(n, "where");
         if (l) bad |= gw_yget_string(p->msgs, l, w, &out->layer_name) < 0;
         if (q) bad |= gw_yget_string(p->msgs, q, w, &out->layer_where) < 0;
+        const gw_ynode *ac = gw_ymap_get(n, "assume_crs");
+        if (ac) bad |= gw_yget_bool(p->msgs, ac, w, &out->assume_crs) < 0;
+        out->name_field = p->name_field;   /* one feature per row */
+        p->name_field = NULL;
         return bad ? -1 : 0;
+    }
+    if (p->name_field) {
+        gw_msgs_add(p->msgs, n ? n->line : 0, n ? n->col : 0,
+                    "%s: name: {field: %s} reads one feature per row of a layer; give the geometry as "
+                    "{file: ..., layer: ...}", what, p->name_field);
+        free(p->name_field);
+        p->name_field = NULL;
     }
     if (kind == GW_GEOM_POINT) {
         out->xy = malloc(2 * sizeof *out->xy);
@@ -208,10 +232,36 @@ static void parse_units(P *p, const gw_ynode *n)
 
 static void parse_grid(P *p, const gw_ynode *n)
 {
-    static const char *const keys[] = { "origin", "cell_size", "columns", "rows", "crs", NULL };
+    static const char *const keys[] = { "origin", "cell_size", "columns", "rows", "crs", "like", NULL };
     gw_grid *g = &p->m->grid;
     if (!gw_yis_map(p->msgs, n, "grid")) return;
     gw_ycheck_keys(p->msgs, n, "grid", keys);
+    const gw_ynode *like = gw_ymap_get(n, "like");
+    if (like) {   /* grid: {like: some.tif}: the raster's cells and CRS */
+        static const char *const own[] = { "origin", "cell_size", "columns", "rows", NULL };
+        for (int i = 0; own[i]; i++) {
+            const gw_ynode *k = gw_ymap_get(n, own[i]);
+            if (k) gw_msgs_add(p->msgs, k->line, k->col, "grid.%s: not allowed with grid.like (the raster sets it)",
+                               own[i]);
+        }
+        char *file = NULL, *crs = NULL;
+        if (get_file(p, like, "grid.like", &file) < 0) return;
+        gw_error e;
+        char what[64];
+        snprintf(what, sizeof what, "grid.like");
+        if (gw_raster_grid_like(file, what, g, &crs, &e) < 0) {
+            gw_msgs_add(p->msgs, like->line, like->col, "%s", e.msg);
+        } else if ((long)g->nx * (long)g->ny > GW_MAX_CELLS) {
+            gw_msgs_add(p->msgs, like->line, like->col, "grid.like: %d columns x %d rows is more than %ld cells",
+                        g->nx, g->ny, GW_MAX_CELLS);
+        }
+        free(file);
+        const gw_ynode *c2 = gw_ymap_get(n, "crs");
+        if (c2) gw_yget_string(p->msgs, c2, "grid.crs", &p->m->crs);   /* an explicit crs wins */
+        if (!p->m->crs) p->m->crs = crs;
+        else free(crs);
+        return;
+    }
     const gw_ynode *o = gw_yrequire(p->msgs, n, "origin", "grid");
     if (o) {
         double xy[2];
@@ -275,9 +325,15 @@ static void parse_aquifer(P *p, const gw_ynode *n)
     if (po) parse_property(p, po, "aquifer.porosity", C_FRACTION, &m->porosity);
     const gw_ynode *ac = gw_ymap_get(n, "active");
     if (ac && gw_yis_map(p->msgs, ac, "aquifer.active")) {
-        static const char *const akeys[] = { "polygon", NULL };
+        static const char *const akeys[] = { "polygon", "raster", "band", NULL };
         gw_ycheck_keys(p->msgs, ac, "aquifer.active", akeys);
-        const gw_ynode *pg = gw_yrequire(p->msgs, ac, "polygon", "aquifer.active");
+        const gw_ynode *ar = gw_ymap_get(ac, "raster"), *ab = gw_ymap_get(ac, "band");
+        if (ar) {   /* a mask raster: non-zero = active (majority of each cell) */
+            m->active_band = 1;
+            get_file(p, ar, "aquifer.active.raster", &m->active_raster);
+            if (ab) gw_yget_int(p->msgs, ab, "aquifer.active.band", 1, 100000, &m->active_band);
+        }
+        const gw_ynode *pg = ar ? gw_ymap_get(ac, "polygon") : gw_yrequire(p->msgs, ac, "polygon", "aquifer.active");
         if (pg) parse_path(p, pg, "aquifer.active.polygon", GW_GEOM_POLYGON, &m->active);
     }
 }
@@ -322,6 +378,9 @@ static const gw_ynode *feature_item(P *p, const gw_ynode *list, int i, const cha
     if (nm && nm->kind == GW_YSCALAR && !nm->empty && nm->len < 120 && strlen(nm->text) == nm->len)
         snprintf(what, wlen, "%s '%s'", word, nm->text);
     gw_ycheck_keys(p->msgs, it, what, keys);
+    free(p->name_field);
+    p->name_field = NULL;
+    if (field_of(p, nm, what, &p->name_field) != 0) return it;   /* named per layer row */
     nm = gw_yrequire(p->msgs, it, "name", what);
     if (nm) gw_yget_string(p->msgs, nm, what, name);
     return it;
@@ -335,6 +394,8 @@ static int values_of(P *p, const gw_ynode *it, const char *key, const char *what
     const gw_ynode *v = gw_yrequire(p->msgs, it, key, what);
     if (!v) return -1;
     out->src = src_of(p, v);
+    int fo = field_of(p, v, w, &out->field);
+    if (fo != 0) return fo < 0 ? -1 : 0;
     if (gw_yget_numbers(p->msgs, v, w, &out->v, &out->n) < 0) return -1;
     for (int i = 0; i < out->n; i++)
         if (check_value(p, v->kind == GW_YSEQ ? v->kids[i] : v, w, out->v[i], c) < 0) return -1;
@@ -447,7 +508,8 @@ static void parse_wells(P *p, const gw_ynode *n)
             w->x = w->at.xy[0];
             w->y = w->at.xy[1];
         }
-        number_of(p, it, "pumping", what, C_ANY, &w->pumping);
+        if (!field_of(p, gw_ymap_get(it, "pumping"), what, &w->pumping_field))
+            number_of(p, it, "pumping", what, C_ANY, &w->pumping);
     }
 }
 
@@ -469,7 +531,8 @@ static void parse_obs(P *p, const gw_ynode *n)
             o->x = o->at.xy[0];
             o->y = o->at.xy[1];
         }
-        if (gw_ymap_get(it, "head")) number_of(p, it, "head", what, C_ANY, &o->head);
+        if (gw_ymap_get(it, "head") && !field_of(p, gw_ymap_get(it, "head"), what, &o->head_field))
+            number_of(p, it, "head", what, C_ANY, &o->head);
     }
 }
 
@@ -680,8 +743,9 @@ gw_model *gw_model_load_string(const char *text, const char *path, gw_error *err
     set_defaults(m);
     gw_msgs msgs;
     gw_msgs_init(&msgs, m->path);
-    P p = { &msgs, m };
+    P p = { &msgs, m, NULL };
     parse_root(&p, gw_ydoc_root(doc));
+    free(p.name_field);
     gw_ydoc_free(doc);
     if (!m->title) m->title = title_from(path);
     if (msgs.count) {

@@ -5,6 +5,7 @@
 #include <string.h>
 
 #include "json_writer.h"
+#include "transect_csv.h"
 
 static const char *aquifer_word(gw_aquifer_type t)
 {
@@ -53,6 +54,9 @@ static void write_solver(gw_json *j, const gw_results *r)
     gw_json_kv_double(j, "solve", s->timing.solve);
     gw_json_kv_double(j, "budget", r->timing.budget);
     gw_json_kv_double(j, "analysis", r->timing.analysis);
+    gw_json_kv_double(j, "divides", r->timing.divides);
+    gw_json_kv_double(j, "tracking", r->timing.tracking);
+    gw_json_kv_double(j, "outputs", r->timing.outputs);
     gw_json_object_end(j);
     gw_json_object_end(j);
 }
@@ -126,47 +130,269 @@ static void write_strings(gw_json *j, const char *key, const gw_strlist *l)
 
 static void write_divides(gw_json *j, const gw_results *r)
 {
-    /* [{"between": [str, str], "line": [[x, y], ...]}] */
-    (void)r;
+    /* [{"between": [str, str], "line": [[x, y], ...]}], plus "closed" for a
+     * divide that loops round a catchment. */
+    const gw_divides *d = r->divides ? &r->divides->divides : NULL;
     gw_json_key(j, "divides");
     gw_json_array_begin(j);
+    for (int i = 0; d && i < d->n; i++) {
+        gw_json_object_begin(j);
+        gw_json_key(j, "between");
+        gw_json_array_begin_inline(j);
+        gw_json_string(j, gw_results_feature_name(r, d->d[i].a));
+        gw_json_string(j, gw_results_feature_name(r, d->d[i].b));
+        gw_json_array_end(j);
+        gw_json_key(j, "line");
+        gw_json_array_begin(j);
+        for (int k = 0; k < d->d[i].npts; k++)
+            gw_json_pair(j, d->d[i].xy[2 * k], d->d[i].xy[2 * k + 1]);
+        gw_json_array_end(j);
+        if (d->d[i].closed) gw_json_kv_bool(j, "closed", 1);
+        gw_json_object_end(j);
+    }
+    gw_json_array_end(j);
+    /* Features whose water reaches another with no divide between them. */
+    const gw_divide_analysis *a = r->divides;
+    gw_json_key(j, "no_divide");
+    gw_json_array_begin(j);
+    for (int i = 0; a && i < a->nno_divide; i++) {
+        const gw_no_divide *nd = &a->no_divide[i];
+        gw_json_object_begin_inline(j);
+        gw_json_key(j, "between");
+        gw_json_array_begin_inline(j);
+        gw_json_string(j, gw_results_feature_name(r, nd->losing));
+        gw_json_string(j, gw_results_feature_name(r, nd->receiving));
+        gw_json_array_end(j);
+        gw_json_kv_double(j, "loss", nd->loss);
+        gw_json_kv_double(j, "reaching", nd->delivered);
+        gw_json_object_end(j);
+    }
     gw_json_array_end(j);
 }
 
 static void write_stagnation_points(gw_json *j, const gw_results *r)
 {
     /* [{"at": [x, y], "head": f, "type": "maximum|saddle|minimum"}] */
-    (void)r;
+    const gw_divide_analysis *a = r->divides;
     gw_json_key(j, "stagnation_points");
     gw_json_array_begin(j);
+    for (int i = 0; a && i < a->nstagnation; i++) {
+        const gw_stagnation *s = &a->stagnation[i];
+        gw_json_object_begin_inline(j);
+        gw_json_kv_pair(j, "at", s->x, s->y);
+        gw_json_kv_double(j, "head", s->head);
+        gw_json_kv_string(j, "type", gw_stag_type_name(s->type));
+        gw_json_object_end(j);
+    }
     gw_json_array_end(j);
 }
 
 static void write_catchments(gw_json *j, const gw_results *r)
 {
-    /* [{"feature": str, "area": f, "recharge": f}] */
-    (void)r;
+    /* [{"feature": str, "area": f, "recharge": f}], plus "received": all
+     * water ending in the feature (recharge and water from other features). */
+    const gw_catchments *c = r->divides ? &r->divides->catchments : NULL;
     gw_json_key(j, "catchments");
     gw_json_array_begin(j);
+    for (int f = 0; c && f < c->nfeatures; f++) {
+        if (!c->discharge[f]) continue;
+        gw_json_object_begin_inline(j);
+        gw_json_kv_string(j, "feature", gw_results_feature_name(r, f));
+        gw_json_kv_double(j, "area", c->area[f]);
+        gw_json_kv_double(j, "recharge", c->recharge[f]);
+        gw_json_kv_double(j, "received", c->received[f]);
+        gw_json_object_end(j);
+    }
     gw_json_array_end(j);
 }
 
 static void write_hinge_points(gw_json *j, const gw_results *r)
 {
     /* cross-section mode: [{"at": [x, z]}] */
-    (void)r;
+    const gw_section *s = r->section;
     gw_json_key(j, "hinge_points");
     gw_json_array_begin(j);
+    for (int i = 0; s && i < s->nhinges; i++) {
+        gw_json_object_begin_inline(j);
+        gw_json_kv_pair(j, "at", s->hinge[i].x, s->hinge[i].z);
+        gw_json_object_end(j);
+    }
     gw_json_array_end(j);
+    if (!s)
+        return;
+    /* Cross-section extras: areas along the top, Toth (1963) flow systems
+     * and the dividing streamlines between them.  Flows are per unit width. */
+    gw_json_key(j, "section");
+    gw_json_object_begin(j);
+    gw_json_kv_double(j, "recharge_length", s->recharge_length);
+    gw_json_kv_double(j, "discharge_length", s->discharge_length);
+    gw_json_kv_double(j, "recharge", s->recharge_flux);
+    gw_json_kv_double(j, "discharge", s->discharge_flux);
+    gw_json_kv_double(j, "recharge_rate", s->recharge_rate);
+    gw_json_kv_double(j, "discharge_rate", s->discharge_rate);
+    gw_json_kv_double(j, "unassigned", s->other_flux);
+    gw_json_key(j, "areas");
+    gw_json_array_begin(j);
+    for (int i = 0; i < s->nareas; i++) {
+        gw_json_object_begin_inline(j);
+        gw_json_kv_string(j, "type", s->area[i].recharge ? "recharge" : "discharge");
+        gw_json_kv_pair(j, "x", s->area[i].x0, s->area[i].x1);
+        gw_json_kv_double(j, "flow", s->area[i].flux);
+        gw_json_object_end(j);
+    }
+    gw_json_array_end(j);
+    gw_json_object_end(j);
+    gw_json_key(j, "flow_systems");
+    gw_json_array_begin(j);
+    for (int i = 0; i < s->nsystems; i++) {
+        const gw_flow_system *y = &s->system[i];
+        gw_json_object_begin_inline(j);
+        gw_json_kv_string(j, "type", gw_system_kind_name(y->kind));
+        gw_json_kv_pair(j, "recharge_x", y->x_from, y->x_to);
+        gw_json_kv_pair(j, "discharge_x", s->area[y->discharge_area].x0, s->area[y->discharge_area].x1);
+        gw_json_kv_double(j, "flow", y->flux);
+        gw_json_kv_double(j, "bottom", y->bottom);
+        gw_json_kv_double(j, "depth", y->depth);
+        gw_json_kv_pair(j, "travel_time", y->time_min, y->time_max);
+        gw_json_object_end(j);
+    }
+    gw_json_array_end(j);
+    gw_json_key(j, "section_divides");
+    gw_json_array_begin(j);
+    for (int i = 0; i < s->ndivides; i++) {
+        gw_json_object_begin_inline(j);
+        gw_json_key(j, "line");
+        gw_json_array_begin_inline(j);
+        for (int k = 0; k < s->divide[i].n; k++)
+            gw_json_pair(j, s->divide[i].xz[2 * k], s->divide[i].xz[2 * k + 1]);
+        gw_json_array_end(j);
+        gw_json_object_end(j);
+    }
+    gw_json_array_end(j);
+}
+
+/* A closed ring [[x, y], ..., first point again]; [] when empty. */
+static void write_ring(gw_json *j, const gw_capring *rg)
+{
+    gw_json_array_begin(j);
+    for (int i = 0; rg && i <= rg->n && rg->n > 0; i++)
+        gw_json_pair(j, rg->x[i % rg->n], rg->y[i % rg->n]);
+    gw_json_array_end(j);
+}
+
+/* "area", "polygon" (largest outer ring) and, when the zone has more than
+ * one ring, "other_rings" (further parts counter-clockwise, holes
+ * clockwise). */
+static void write_capzone(gw_json *j, const gw_capzone *z)
+{
+    gw_json_kv_double(j, "area", z->area);
+    gw_json_key(j, "polygon");
+    write_ring(j, z->outer >= 0 ? &z->ring[z->outer] : NULL);
+    if (z->nring > 1) {
+        gw_json_key(j, "other_rings");
+        gw_json_array_begin(j);
+        for (int i = 0; i < z->nring; i++)
+            if (i != z->outer) write_ring(j, &z->ring[i]);
+        gw_json_array_end(j);
+    }
 }
 
 static void write_capture_zones(gw_json *j, const gw_results *r)
 {
     /* [{"well": str, "area": f, "polygon": [[x, y], ...],
-     *   "travel_time_zones": [{"time": f, "area": f, "polygon": [...]}]}] */
-    (void)r;
+     *   "travel_time_zones": [{"time": f, "area": f, "polygon": [...]}]}]
+     * plus the pumping, the split of the well's water by source (rates and
+     * fractions; "recharge" for areal recharge, else the feature's name),
+     * the induced stream share and how strong a sink the well cell is. */
     gw_json_key(j, "capture_zones");
     gw_json_array_begin(j);
+    const gw_capture *c = r->capture;
+    for (int i = 0; c && i < c->nzone; i++) {
+        const gw_capture_zone *z = &c->zone[i];
+        gw_json_object_begin(j);
+        gw_json_kv_string(j, "well", gw_results_feature_name(r, z->feature));
+        gw_json_kv_double(j, "pumping", z->rate);
+        write_capzone(j, &z->capture);
+        double stream = 0.0;
+        gw_json_key(j, "sources");
+        gw_json_object_begin(j);
+        for (int f = 0; f < c->nfeatures; f++) {
+            if (!(z->source[f] > 1e-12 * z->rate)) continue;
+            gw_json_kv_double(j, f == 0 ? "recharge" : gw_results_feature_name(r, f), z->source[f]);
+            if (r->problem->features[f].type == GW_FEAT_STREAM) stream += z->source[f];
+        }
+        gw_json_object_end(j);
+        gw_json_key(j, "source_fractions");
+        gw_json_object_begin(j);
+        for (int f = 0; f < c->nfeatures; f++)
+            if (z->source[f] > 1e-12 * z->rate)
+                gw_json_kv_double(j, f == 0 ? "recharge" : gw_results_feature_name(r, f),
+                                  z->source[f] / z->rate);
+        gw_json_object_end(j);
+        gw_json_kv_double(j, "stream_fraction", stream / z->rate);
+        gw_json_kv_double(j, "well_cell_share", z->well_cell_share);
+        gw_json_kv_double(j, "weak_sink_path_fraction", z->weak_pass_share);
+        gw_json_kv_int(j, "paths", z->seeds);
+        gw_json_key(j, "path_ends");
+        gw_json_object_begin(j);
+        for (int e = GW_END_SINK; e <= GW_END_MAX_STEPS; e++)
+            if (z->ends[e] > 0) gw_json_kv_int(j, gw_track_end_name((gw_track_end)e), z->ends[e]);
+        gw_json_object_end(j);
+        gw_json_key(j, "travel_time_zones");
+        gw_json_array_begin(j);
+        for (int t = 0; t < z->nttz; t++) {
+            gw_json_object_begin(j);
+            gw_json_kv_double(j, "time", z->ttz[t].time);
+            write_capzone(j, &z->ttz[t]);
+            gw_json_object_end(j);
+        }
+        gw_json_array_end(j);
+        gw_json_object_end(j);
+    }
+    gw_json_array_end(j);
+}
+static void write_transects(gw_json *j, const gw_results *r)
+{
+    /* [{"name", "file", "length", "divide_crossings": [{"distance", "at",
+     * "head", "between"}], "flow_reversals": [{"distance", "at", "type"}]}]:
+     * where divides cross each transect (solver/transect.h), and where the
+     * flux along it changes direction ("diverging" on a divide met
+     * square-on, "converging" at a gaining stream). */
+    gw_json_key(j, "transects");
+    gw_json_array_begin(j);
+    for (int i = 0; i < r->ntransects && r->model && i < r->model->ntransects; i++) {
+        const gw_transect *t = &r->transects[i];
+        char file[256];
+        gw_transect_file_name(r->model, i, file, sizeof file);
+        gw_json_object_begin(j);
+        gw_json_kv_string(j, "name", r->model->transects[i].name);
+        gw_json_kv_string(j, "file", file);
+        gw_json_kv_double(j, "length", t->length);
+        for (int pass = 0; pass < 2; pass++) {
+            gw_json_key(j, pass == 0 ? "divide_crossings" : "flow_reversals");
+            gw_json_array_begin(j);
+            for (int c = 0; c < t->ncross; c++) {
+                const gw_transect_crossing *x = &t->c[c];
+                if ((x->kind == GW_CROSS_DIVIDE) != (pass == 0)) continue;
+                gw_json_object_begin_inline(j);
+                gw_json_kv_double(j, "distance", x->at.dist);
+                gw_json_kv_pair(j, "at", x->at.x, x->at.y);
+                gw_json_kv_double(j, "head", x->at.head);
+                if (pass == 0) {
+                    gw_json_key(j, "between");
+                    gw_json_array_begin_inline(j);
+                    gw_json_string(j, gw_results_feature_name(r, x->a));
+                    gw_json_string(j, gw_results_feature_name(r, x->b));
+                    gw_json_array_end(j);
+                } else {
+                    gw_json_kv_string(j, "type", x->kind == GW_CROSS_DIVERGING ? "diverging" : "converging");
+                }
+                gw_json_object_end(j);
+            }
+            gw_json_array_end(j);
+        }
+        gw_json_object_end(j);
+    }
     gw_json_array_end(j);
 }
 /* ---- end of analysis sections ------------------------------------------ */
@@ -195,6 +421,7 @@ int gw_report_json_write(const gw_results *r, FILE *f, gw_error *err)
     write_catchments(&j, r);
     write_hinge_points(&j, r);
     write_capture_zones(&j, r);
+    write_transects(&j, r);
     /* ---- further report sections go here ---- */
     write_strings(&j, "warnings", &r->warnings);
     write_strings(&j, "cautions", &r->cautions);

@@ -45,6 +45,14 @@ void gw_results_free(gw_results *r)
 {
     if (!r) return;
     /* ---- free analysis results here (see results.h) ---- */
+    gw_capture_free(r->capture);
+    free(r->capture);
+    gw_divide_analysis_free(r->divides);
+    free(r->divides);
+    for (int i = 0; i < r->ntransects; i++) gw_transect_free(&r->transects[i]);
+    free(r->transects);
+    gw_section_free(r->section);
+    free(r->section);
 
     /* ---- end of analysis results ---- */
     free(r->obs_simulated);

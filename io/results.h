@@ -5,10 +5,14 @@
 #define GW_RESULTS_H
 
 #include "../solver/budget.h"
+#include "../solver/capture.h"
+#include "../solver/divide.h"
 #include "../solver/error.h"
 #include "../solver/observe.h"
 #include "../solver/problem.h"
+#include "../solver/section.h"
 #include "../solver/solve.h"
+#include "../solver/transect.h"
 #include "model.h"
 
 /* A growable list of owned strings. */
@@ -24,6 +28,7 @@ void gw_strlist_free(gw_strlist *l);
  * solution.timing). */
 typedef struct {
     double read, build, solve, budget, analysis, outputs, total;
+    double divides, tracking;   /* parts of analysis: flow field + divides, capture tracking */
 } gw_run_timing;
 
 typedef struct {
@@ -50,6 +55,12 @@ typedef struct {
      * gw_results_free (marked spot in results.c) and emit it in
      * report_json.c (marked spots) and, if useful, in the summary.  NULL
      * means "not computed". */
+
+    gw_capture *capture;      /* well capture and travel-time zones (run_capture.c) */
+    gw_divide_analysis *divides; /* catchments, divides, stagnation points (run_divides.c) */
+    gw_transect *transects;   /* one per model->transects[i] (run_transects.c) */
+    int ntransects;
+    gw_section *section;      /* cross-section hinge points and flow systems (run_section.c) */
 
     /* ---- end of analysis results ------------------------------------- */
 } gw_results;

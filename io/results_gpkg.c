@@ -15,7 +15,6 @@
 #include <ogr_api.h>
 #include <ogr_srs_api.h>
 
-#include "../solver/rasterize.h"
 
 struct gw_gpkg {
     char *path;
@@ -38,7 +37,9 @@ void gw_field_unit(const char *unit, char *buf, size_t len)
     size_t j = 0;
     if (!len) return;
     for (const char *s = unit ? unit : ""; *s && j + 1 < len; s++) {
+        if (*s == ' ') continue;
         if (*s == '/') {
+            while (j > 0 && buf[j - 1] == '_') j--;
             const char *w = "_per_";
             for (; *w && j + 1 < len; w++) buf[j++] = *w;
         } else if ((*s >= 'a' && *s <= 'z') || (*s >= 'A' && *s <= 'Z') || (*s >= '0' && *s <= '9')) {
@@ -168,14 +169,18 @@ static OGRGeometryH build_geom(gw_vgeom kind, const double *const *parts, const 
     }
     OGRGeometryH m = OGR_G_CreateGeometry(wkbMultiPolygon);
     OGRGeometryH poly = NULL;
-    int outer = -1;
     for (int i = 0; m && i < nparts; i++) {
         if (n[i] < 3) continue;
-        int hole = poly && outer >= 0 && gw_point_in_polygon(parts[i][0], parts[i][1], parts[outer], n[outer]);
+        /* Shoelace sign: clockwise rings are holes of the polygon before. */
+        double a2 = 0.0;
+        for (int j = 0; j < n[i]; j++) {
+            int k = (j + 1) % n[i];
+            a2 += parts[i][2 * j] * parts[i][2 * k + 1] - parts[i][2 * k] * parts[i][2 * j + 1];
+        }
+        int hole = poly && a2 < 0.0;
         if (!hole) {
             if (poly) OGR_G_AddGeometryDirectly(m, poly);
             poly = OGR_G_CreateGeometry(wkbPolygon);
-            outer = i;
             if (!poly) break;
         }
         OGRGeometryH r = ring_of(parts[i], n[i], 1);

@@ -42,9 +42,9 @@ int gw_gpkg_layer(gw_gpkg *g, const char *name, gw_vgeom kind, const gw_field *f
 
 /* Add one feature to the current layer.  parts[i] holds n[i] vertices (x, y
  * pairs): for a LINE layer each part is one polyline; for a POLYGON layer
- * each part is a closed ring, an outer ring followed by its holes, and a
- * ring that lies inside none of the earlier outer rings starts a new
- * polygon; for a POINT layer one part of one vertex.  vals has one entry
+ * each part is a ring (closing vertex optional): a counter-clockwise ring
+ * starts a polygon, a clockwise ring after it is one of its holes; for a
+ * POINT layer one part of one vertex.  vals has one entry
  * per field. */
 int gw_gpkg_add(gw_gpkg *g, const double *const *parts, const int *n, int nparts, const gw_fvalue *vals,
                 gw_error *err);

@@ -8,7 +8,9 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "../solver/capture.h"
 #include "../solver/divide.h"
+#include "../solver/rasterize.h"
 #include "../solver/stagnation.h"
 
 typedef struct {
@@ -27,6 +29,17 @@ static void units_of(const gw_model *m, units *u)
     gw_field_unit(u->tw, u->T, sizeof u->T);
     snprintf(u->A, sizeof u->A, "%s2", u->L);
     snprintf(u->Q, sizeof u->Q, "%s3_per_%s", u->L, u->T);
+}
+
+/* Signed area of a ring (shoelace; positive = counter-clockwise). */
+static double ring_signed_area(const gw_capring *r)
+{
+    double a2 = 0.0;
+    for (int j = 0; j < r->n; j++) {
+        int k = (j + 1) % r->n;
+        a2 += r->x[j] * r->y[k] - r->x[k] * r->y[j];
+    }
+    return 0.5 * a2;
 }
 
 /* ---- line features cut to one cell ------------------------------------ */
@@ -258,24 +271,52 @@ int gw_gpkg_write_divides(gw_gpkg *g, const gw_results *r, const gw_divide_analy
     /* Catchments: polygons of the cells whose water mostly ends in each
      * feature; report_area is the report's share-weighted area. */
     const gw_catchments *c = &da->catchments;
+    char f_m[64];
     snprintf(f_a, sizeof f_a, "area_%s", u.A);
     snprintf(f_ra, sizeof f_ra, "report_area_%s", u.A);
+    snprintf(f_m, sizeof f_m, "mixed_area_%s", u.A);
     snprintf(f_rch, sizeof f_rch, "recharge_%s", u.Q);
-    gw_field fc[] = {{"feature", GW_FIELD_TEXT}, {"type", GW_FIELD_TEXT}, {f_ra, GW_FIELD_REAL}, {f_rch, GW_FIELD_REAL}};
-    gw_fvalue *vals = calloc((size_t)(p->nfeatures ? p->nfeatures : 1) * 4, sizeof *vals);
-    if (!vals) return gw_fail(err, "out of memory");
-    for (int f = 0; f < p->nfeatures; f++) {
-        vals[4 * f + 0].s = p->features[f].name;
-        vals[4 * f + 1].s = gw_feature_type_name(p->features[f].type);
-        vals[4 * f + 2].d = c->area ? c->area[f] : NAN;
-        vals[4 * f + 3].d = c->recharge ? c->recharge[f] : NAN;
+    gw_field fc[] = {{"feature", GW_FIELD_TEXT}, {"type", GW_FIELD_TEXT}, {f_ra, GW_FIELD_REAL},
+                     {f_m, GW_FIELD_REAL},       {f_rch, GW_FIELD_REAL}};
+    enum { NF = 5 };
+    size_t ncell = gw_grid_ncells(&p->grid);
+    gw_fvalue *vals = calloc((size_t)(p->nfeatures ? p->nfeatures : 1) * NF, sizeof *vals);
+    double *share = malloc(ncell * sizeof *share);
+    gw_flowfield ff;
+    memset(&ff, 0, sizeof ff);
+    if (!vals || !share) {
+        free(vals);
+        free(share);
+        return gw_fail(err, "out of memory");
     }
+    /* mixed_area: cells sending only part of their water to the feature.
+     * The polygon (dominant cells) and the share-weighted report area can
+     * differ by at most this much, since they agree on every other cell. */
+    int rc = gw_flowfield_compute(p, &r->solution, &ff, err);
+    for (int f = 0; rc == 0 && f < p->nfeatures; f++) {
+        double mixed = 0.0;
+        if (c->dominant && c->area && c->area[f] > 0.0) {
+            rc = gw_catchment_share(p, &ff, f, share, err);
+            for (size_t k = 0; rc == 0 && k < ncell; k++)
+                if (share[k] > 1e-12 && share[k] < 1.0 - 1e-12) mixed += p->grid.dx * p->grid.dy;
+        }
+        vals[NF * f + 0].s = p->features[f].name;
+        vals[NF * f + 1].s = gw_feature_type_name(p->features[f].type);
+        vals[NF * f + 2].d = c->area ? c->area[f] : NAN;
+        vals[NF * f + 3].d = mixed;
+        vals[NF * f + 4].d = c->recharge ? c->recharge[f] : NAN;
+    }
+    gw_flowfield_free(&ff);
+    free(share);
     snprintf(desc, sizeof desc,
              "Catchments: cells whose water mostly ends in the feature (dominant share), one multipolygon per "
-             "feature. area = polygon area (%s2); report_area = area weighted by each cell's share as in "
-             "report.json; recharge ending in the feature (%s3/%s).",
+             "feature. area = polygon area (%s2); report_area = area weighted by each cell's share, as in "
+             "report.json; mixed_area = area of cells sending only part of their water to the feature (the two "
+             "areas differ by at most this); recharge ending in the feature (%s3/%s).",
              u.lw, u.lw, u.tw);
-    int rc = gw_gpkg_class_polygons(g, "catchments", &p->grid, c->dominant, p->nfeatures, fc, 4, vals, f_a, desc, err);
+    if (rc == 0)
+        rc = gw_gpkg_class_polygons(g, "catchments", &p->grid, c->dominant, p->nfeatures, fc, NF, vals, f_a, desc,
+                                    err);
     free(vals);
     if (rc != 0) return -1;
 
@@ -290,6 +331,84 @@ int gw_gpkg_write_divides(gw_gpkg *g, const gw_results *r, const gw_divide_analy
         int one = 1;
         gw_fvalue v[2] = {{.s = gw_stag_type_name(s->type)}, {.d = s->head}};
         if (gw_gpkg_add(g, &part, &one, 1, v, err) != 0) return -1;
+    }
+    return 0;
+}
+
+/* One capture or travel-time zone as a feature: each outer ring followed
+ * by the holes that lie in it, orientation fixed (outer counter-clockwise). */
+static int add_zone(gw_gpkg *g, const gw_capzone *z, const gw_fvalue *v, gw_error *err)
+{
+    if (z->nring <= 0) return 0;
+    double **xy = calloc((size_t)z->nring, sizeof *xy);
+    double **parts = calloc((size_t)z->nring, sizeof *parts);
+    int *n = calloc((size_t)z->nring, sizeof *n);
+    int rc = -1, np = 0;
+    if (!xy || !parts || !n) { gw_fail(err, "out of memory"); goto done; }
+    for (int i = 0; i < z->nring; i++) {
+        const gw_capring *r = &z->ring[i];
+        if (!(xy[i] = malloc((size_t)(r->n > 0 ? r->n : 1) * 2 * sizeof **xy))) { gw_fail(err, "out of memory"); goto done; }
+        /* store outer rings counter-clockwise and holes clockwise */
+        int flip = (r->area > 0) != (ring_signed_area(r) > 0);
+        for (int j = 0; j < r->n; j++) {
+            int s = flip ? r->n - 1 - j : j;
+            xy[i][2 * j] = r->x[s];
+            xy[i][2 * j + 1] = r->y[s];
+        }
+    }
+    for (int i = 0; i < z->nring; i++) {
+        if (!(z->ring[i].area > 0) || z->ring[i].n < 3) continue;
+        parts[np] = xy[i];
+        n[np++] = z->ring[i].n;
+        for (int h = 0; h < z->nring; h++)
+            if (z->ring[h].area < 0 && z->ring[h].n >= 3 &&
+                gw_point_in_polygon(xy[h][0], xy[h][1], xy[i], z->ring[i].n)) {
+                parts[np] = xy[h];
+                n[np++] = z->ring[h].n;
+            }
+    }
+    rc = np > 0 ? gw_gpkg_add(g, (const double *const *)parts, n, np, v, err) : 0;
+done:
+    for (int i = 0; xy && i < z->nring; i++) free(xy[i]);
+    free(xy);
+    free(parts);
+    free(n);
+    return rc;
+}
+
+int gw_gpkg_write_capture(gw_gpkg *g, const gw_results *r, const gw_capture *c, gw_error *err);
+int gw_gpkg_write_capture(gw_gpkg *g, const gw_results *r, const gw_capture *c, gw_error *err)
+{
+    units u;
+    units_of(r->model, &u);
+    char f_a[64], f_q[120], f_t[64], desc[400];
+    snprintf(f_a, sizeof f_a, "area_%s", u.A);
+    snprintf(f_q, sizeof f_q, "pumping_%s", u.Q);
+    snprintf(f_t, sizeof f_t, "time_%s", u.T);
+    gw_field fc[] = {{"well", GW_FIELD_TEXT}, {f_q, GW_FIELD_REAL}, {f_a, GW_FIELD_REAL}};
+    snprintf(desc, sizeof desc,
+             "Steady-state capture zones (contributing areas) of pumping wells: the ground whose recharge ends in "
+             "the well. area in %s2, holes subtracted; pumping in %s3/%s.",
+             u.lw, u.lw, u.tw);
+    if (gw_gpkg_layer(g, "capture_zones", GW_VGEOM_POLYGON, fc, 3, desc, err) != 0) return -1;
+    for (int i = 0; i < c->nzone; i++) {
+        const gw_capture_zone *z = &c->zone[i];
+        gw_fvalue v[3] = {{.s = gw_results_feature_name(r, z->feature)}, {.d = z->rate}, {.d = z->capture.area}};
+        if (add_zone(g, &z->capture, v, err) != 0) return -1;
+    }
+    gw_field ft[] = {{"well", GW_FIELD_TEXT}, {f_t, GW_FIELD_REAL}, {f_a, GW_FIELD_REAL}};
+    snprintf(desc, sizeof desc,
+             "Travel-time zones of pumping wells: the ground from which water reaches the well within `time` "
+             "(%s), by advective particle tracking. area in %s2.",
+             u.tw, u.lw);
+    if (gw_gpkg_layer(g, "travel_time_zones", GW_VGEOM_POLYGON, ft, 3, desc, err) != 0) return -1;
+    for (int i = 0; i < c->nzone; i++) {
+        const gw_capture_zone *z = &c->zone[i];
+        for (int t = 0; t < z->nttz; t++) {
+            gw_fvalue v[3] = {{.s = gw_results_feature_name(r, z->feature)}, {.d = z->ttz[t].time},
+                              {.d = z->ttz[t].area}};
+            if (add_zone(g, &z->ttz[t], v, err) != 0) return -1;
+        }
     }
     return 0;
 }
@@ -312,7 +431,8 @@ int gw_results_gpkg_write(const gw_results *r, const char *path, gw_error *err)
     gw_gpkg *g = gw_gpkg_create(path, r->problem->type == GW_SECTION ? NULL : r->model->crs, err);
     if (!g) return -1;
     if (gw_gpkg_write_base(g, r, err) != 0) goto fail;
-    /* ---- analysis layers: divides/catchments/stagnation, capture zones ---- */
+    if (r->divides && gw_gpkg_write_divides(g, r, r->divides, err) != 0) goto fail;
+    if (r->capture && gw_gpkg_write_capture(g, r, r->capture, err) != 0) goto fail;
     return gw_gpkg_close(g, err);
 fail:
     gw_gpkg_abort(g);

@@ -107,10 +107,12 @@ int gw_budget_compute(const gw_problem *p, const gw_solution *sol, gw_budget *b,
                 continue;
             int c = (int)(k % (size_t)g->nx);
             double outflow = 0.0;
-            if (c + 1 < g->nx) outflow += sol->cx[k] * (h[k] - h[k + 1]);
-            if (c > 0) outflow += sol->cx[k - 1] * (h[k] - h[k - 1]);
-            if (k + g->nx < nc) outflow += sol->cy[k] * (h[k] - h[k + g->nx]);
-            if (k >= (size_t)g->nx) outflow += sol->cy[k - g->nx] * (h[k] - h[k - g->nx]);
+            /* A zero conductance (inactive neighbour, whose head is NaN) carries nothing. */
+            if (c + 1 < g->nx && sol->cx[k] != 0.0) outflow += sol->cx[k] * (h[k] - h[k + 1]);
+            if (c > 0 && sol->cx[k - 1] != 0.0) outflow += sol->cx[k - 1] * (h[k] - h[k - 1]);
+            if (k + g->nx < nc && sol->cy[k] != 0.0) outflow += sol->cy[k] * (h[k] - h[k + g->nx]);
+            if (k >= (size_t)g->nx && sol->cy[k - g->nx] != 0.0)
+                outflow += sol->cy[k - g->nx] * (h[k] - h[k - g->nx]);
             double q = outflow - other[k];
             gw_reach *r = &b->reach[n++];
             r->feature = f;

@@ -203,7 +203,7 @@ static int crossing(lattice *L, int eid, int a, int b, double tlim, gw_error *er
     return L->np++;
 }
 
-static void zone_free(gw_zone *z)
+static void zone_free(gw_capzone *z)
 {
     for (int i = 0; i < z->nring; i++) {
         free(z->ring[i].x);
@@ -215,7 +215,7 @@ static void zone_free(gw_zone *z)
 }
 
 /* Trace the boundary of {captured and time <= tlim} into rings. */
-static int trace_zone(lattice *L, double tlim, gw_zone *z, gw_error *err)
+static int trace_zone(lattice *L, double tlim, gw_capzone *z, gw_error *err)
 {
     const int NX = L->NX, NY = L->NY;
     memset(z, 0, sizeof *z);
@@ -275,10 +275,10 @@ static int trace_zone(lattice *L, double tlim, gw_zone *z, gw_error *err)
             seen[q] = 1;
             n++;
         }
-        gw_ring rg = {0};
+        gw_capring rg = {0};
         rg.x = malloc((size_t)n * sizeof *rg.x);
         rg.y = malloc((size_t)n * sizeof *rg.y);
-        gw_ring *nr = realloc(z->ring, (size_t)(z->nring + 1) * sizeof *nr);
+        gw_capring *nr = realloc(z->ring, (size_t)(z->nring + 1) * sizeof *nr);
         if (!rg.x || !rg.y || !nr) {
             free(rg.x);
             free(rg.y);

@@ -30,21 +30,21 @@ typedef struct {
     double *x, *y;
     int n;
     double area;
-} gw_ring;
+} gw_capring;
 
 typedef struct {
     double time;      /* travel-time limit, T; HUGE_VAL for the capture zone */
     double area;      /* L^2, holes subtracted */
-    gw_ring *ring;
+    gw_capring *ring;
     int nring;
     int outer;        /* index of the largest outer ring, -1 when empty */
-} gw_zone;
+} gw_capzone;
 
 typedef struct {
     int feature;            /* the well's feature index */
     double rate;            /* total pumping, L^3/T */
-    gw_zone capture;        /* unlimited time */
-    gw_zone *ttz;           /* one per requested travel time, ascending */
+    gw_capzone capture;        /* unlimited time */
+    gw_capzone *ttz;           /* one per requested travel time, ascending */
     int nttz;
     /* Well's water by source feature, L^3/T, length nfeatures (feature 0 is
      * recharge); sums to `rate` to round-off. */

@@ -281,7 +281,15 @@ static int build_top(const gw_problem *p, const gw_solution *sol, const gw_budge
     /* Hinge points: sign changes of the top flux, placed by linear
      * interpolation of the rate between the two nearest columns that carry
      * flow (columns with negligible flow in between are skipped). */
-    double tiny = o->zero_flux * fmaxabs;
+    /* Negligible: relative to the largest top flux, and to the round-off of
+     * a face flux (conductance x head), so a still water table has none. */
+    double cmax = 0.0, hmax = 0.0;
+    for (size_t k = 0; k < gw_grid_ncells(g); k++) {
+        cmax = fmax(cmax, fmax(sol->cx[k], sol->cy[k]));
+        if (p->active[k])
+            hmax = fmax(hmax, fabs(sol->head[k]));
+    }
+    double tiny = fmax(o->zero_flux * fmaxabs, 1e-10 * cmax * hmax);
     int prev = -1, psign = 0;
     for (int i = 0; i < s->ntop; i++) {
         double q = s->top[i].flux;
@@ -611,7 +619,7 @@ static int find_systems(ctx *c, const gw_section_options *o, gw_error *err)
         int fi;
         double xa, za, xb, zb;
         seed_point(c, a, &fi, &xa, &za);
-        seed_point(c, fmin(b, c->nfaces - 1e-12), &fi, &xb, &zb);
+        seed_point(c, fmax(a, b - 1e-12), &fi, &xb, &zb);   /* just inside the run */
         if (sm[i].label < 0) {
             s->other_flux += q;
         } else {

@@ -7,9 +7,9 @@
 const char *gw_stag_type_name(gw_stag_type t)
 {
     switch (t) {
-    case GW_STAG_MAXIMUM: return "maximum";
-    case GW_STAG_SADDLE: return "saddle";
-    case GW_STAG_MINIMUM: return "minimum";
+    case GW_STAGNATION_MAXIMUM: return "maximum";
+    case GW_STAGNATION_SADDLE: return "saddle";
+    case GW_STAGNATION_MINIMUM: return "minimum";
     }
     return "unknown";
 }
@@ -153,11 +153,11 @@ int gw_stagnation_find(const gw_problem *p, const gw_solution *sol, const gw_flo
                     sp.head = (1 - s) * (1 - t) * h[k[0]] + s * (1 - t) * h[k[1]] +
                               (1 - s) * t * h[k[2]] + s * t * h[k[3]];
                     if (det < 0)
-                        sp.type = GW_STAG_SADDLE;
+                        sp.type = GW_STAGNATION_SADDLE;
                     else if (tr > 0)
-                        sp.type = GW_STAG_MAXIMUM;
+                        sp.type = GW_STAGNATION_MAXIMUM;
                     else if (tr < 0)
-                        sp.type = GW_STAG_MINIMUM;
+                        sp.type = GW_STAGNATION_MINIMUM;
                     else
                         continue;   /* degenerate: no isolated point */
                     int col, row;

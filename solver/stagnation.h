@@ -13,7 +13,7 @@
 #include "problem.h"
 #include "solve.h"
 
-typedef enum { GW_STAG_MAXIMUM = 0, GW_STAG_SADDLE, GW_STAG_MINIMUM } gw_stag_type;
+typedef enum { GW_STAGNATION_MAXIMUM = 0, GW_STAGNATION_SADDLE, GW_STAGNATION_MINIMUM } gw_stag_type;
 const char *gw_stag_type_name(gw_stag_type t);   /* "maximum", "saddle", "minimum" */
 
 typedef struct {

@@ -180,7 +180,9 @@ static void test_layer_geometry(void **state)
     snprintf(model, sizeof model, "%s/m.yaml", dir);
     FILE *f = fopen(gj, "w");
     assert_non_null(f);
-    fputs("{\"type\": \"FeatureCollection\", \"features\": [\n"
+    fputs("{\"type\": \"FeatureCollection\",\n"
+          " \"crs\": {\"type\": \"name\", \"properties\": {\"name\": \"urn:ogc:def:crs:EPSG::32633\"}},\n"
+          " \"features\": [\n"
           "{\"type\": \"Feature\", \"properties\": {\"name\": \"East\"},\n"
           " \"geometry\": {\"type\": \"LineString\", \"coordinates\": [[95, 0], [95, 50], [96, 100]]}},\n"
           "{\"type\": \"Feature\", \"properties\": {\"name\": \"West\"},\n"
@@ -188,7 +190,7 @@ static void test_layer_geometry(void **state)
     fclose(f);
     const char *y =
         "units: {length: m, time: day}\n"
-        "grid: {origin: [0, 0], cell_size: 10, columns: 10, rows: 10}\n"
+        "grid: {origin: [0, 0], cell_size: 10, columns: 10, rows: 10, crs: EPSG:32633}\n"
         "aquifer: {conductivity: 1, thickness: 1}\n"
         "fixed_heads:\n"
         "  - {name: W, line: {file: creeks.geojson, where: \"name = 'West'\"}, head: 1}\n"
@@ -207,7 +209,7 @@ static void test_layer_geometry(void **state)
     /* A filter matching both features is refused, naming the feature. */
     const char *y2 =
         "units: {length: m, time: day}\n"
-        "grid: {origin: [0, 0], cell_size: 10, columns: 10, rows: 10}\n"
+        "grid: {origin: [0, 0], cell_size: 10, columns: 10, rows: 10, crs: EPSG:32633}\n"
         "aquifer: {conductivity: 1, thickness: 1}\n"
         "fixed_heads:\n"
         "  - {name: Both, line: {file: creeks.geojson}, head: 1}\n";

@@ -217,6 +217,25 @@ static void test_nasty_inputs(void **state)
     expect_reject("? [a, b]\n: 1\n", "t.yaml:1:3:", "plain word", NULL);
 }
 
+/* The same from a file on disk: messages carry its path. */
+static void test_file_on_disk(void **state)
+{
+    char path[1024];
+    const char *d = getenv("GW_TEST_DATA");
+    snprintf(path, sizeof path, "%s/models/bad_several.yaml", d ? d : "tests/data");
+    memset(&err, 0, sizeof err);
+    assert_null(gw_model_load(path, &err));
+    char want[1100];
+    snprintf(want, sizeof want, "%s:5:17: aquifer.conductivity must be greater than zero", path);
+    assert_non_null(strstr(err.msg, want));
+    snprintf(want, sizeof want, "%s:7:3: aquifer: unknown key 'colour'", path);
+    assert_non_null(strstr(err.msg, want));
+    snprintf(want, sizeof want, "%s:9:50: stream 'S': stage: expected a number", path);
+    assert_non_null(strstr(err.msg, want));
+    assert_null(gw_model_load("/nonexistent/model.yaml", &err));
+    assert_non_null(strstr(err.msg, "/nonexistent/model.yaml: cannot open"));
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -232,6 +251,7 @@ int main(void)
         cmocka_unit_test(test_syntax_errors),
         cmocka_unit_test(test_several_problems_listed),
         cmocka_unit_test(test_nasty_inputs),
+        cmocka_unit_test(test_file_on_disk),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -173,7 +173,8 @@ static void solve_section(run *r)
     /* DESIGN: the balance closes to < 1e-6 percent on every test model. */
     print_message("    balance: in %.10g out %.10g discrepancy %.3g %%\n", r->b.total_in,
                   r->b.total_out, r->b.discrepancy_percent);
-    assert_true(fabs(r->b.discrepancy_percent) < 1e-6);
+    /* (a flat water table moves only round-off: nothing to balance) */
+    assert_true(r->b.total_in + r->b.total_out < 1e-8 || fabs(r->b.discrepancy_percent) < 1e-6);
     if (gw_section_analyse(r->p, &r->sol, &r->b, NULL, &r->s, &err)) fail_msg("section: %s", err.msg);
 }
 
@@ -185,18 +186,26 @@ static void run_free(run *r)
     gw_problem_free(r->p);
 }
 
-/* Max |h - series| over the non-fixed cells. */
-static double head_error(const run *r, const water_table *w, int closed_form)
+/* Max |h - series| over the non-fixed cells, leaving out a margin of
+ * `skip` (fraction of L) at both ends. */
+static double head_error_in(const run *r, const water_table *w, int closed_form, double skip)
 {
     const gw_grid *g = &r->p->grid;
     double e = 0.0;
     for (int row = 1; row < g->ny; row++)
         for (int c = 0; c < g->nx; c++) {
             double x = gw_grid_xc(g, c), z = gw_grid_yc(g, row);
+            if (x < skip * w->L || x > (1.0 - skip) * w->L)
+                continue;
             double ha = closed_form ? toth1962_h(w->L, x, z) : series_h(w, x, z);
             e = fmax(e, fabs(r->sol.head[row * g->nx + c] - ha));
         }
     return e;
+}
+
+static double head_error(const run *r, const water_table *w, int closed_form)
+{
+    return head_error_in(r, w, closed_form, 0.0);
 }
 
 /* ---- Toth (1962): linear water table ----------------------------------- */
@@ -206,20 +215,28 @@ static void test_toth1962_heads(void **state)
     (void)state;
     water_table w = {.c = SLOPE, .a = 0.0, .L = BL};
     double relief = SLOPE * BL;
-    double err[2];
+    double err[2], mid[2];
     for (int i = 0; i < 2; i++) {
         run r = {.p = basin(&w, 60 << i, 20 << i, 1.0, KH)};
         solve_section(&r);
         err[i] = head_error(&r, &w, 1);
-        print_message("    Toth (1962) %dx%d: max |h - series| = %.4g m (%.3g %% of relief %.0f m)\n",
-                      r.p->grid.nx, r.p->grid.ny, err[i], 100 * err[i] / relief, relief);
+        mid[i] = head_error_in(&r, &w, 1, 0.1);
+        print_message("    Toth (1962) %dx%d: max |h - series| = %.4g m (%.3g %% of relief %.0f m), "
+                      "away from the ends %.4g m\n",
+                      r.p->grid.nx, r.p->grid.ny, err[i], 100 * err[i] / relief, relief, mid[i]);
         /* Cross-check: the printed closed form equals the general series. */
         if (i == 0)
             assert_true(fabs(toth1962_h(BL, 1234.0, 500.0) - series_h(&w, 1234.0, 500.0)) < 1e-9);
         run_free(&r);
     }
-    print_message("    error ratio on halving the cells: %.2f (second order: ~4)\n", err[0] / err[1]);
-    assert_true(err[0] / err[1] > 3.0);
+    /* The top corners are singular (the water table slopes where the side
+     * is a no-flow boundary, so the velocity grows like log r there): near
+     * them the error can only fall about linearly; away from them the
+     * scheme's second order shows. */
+    print_message("    error ratio on halving the cells: %.2f overall (corners: ~2), %.2f away from "
+                  "the ends (second order: ~4)\n", err[0] / err[1], mid[0] / mid[1]);
+    assert_true(err[0] / err[1] > 1.8);
+    assert_true(mid[0] / mid[1] > 3.0);
     assert_true(err[1] < 0.005 * relief);
 }
 
@@ -249,7 +266,7 @@ static void test_toth1962_hinge(void **state)
     double q = 0.0;
     for (int m = 0; m < 200000; m++) {
         double n = 2 * m + 1;
-        q += tanh(n * M_PI * Z0 / BL) / (n * n);
+        q += (m % 2 ? -1.0 : 1.0) * tanh(n * M_PI * Z0 / BL) / (n * n);
     }
     q *= 4.0 * SLOPE * BL * KH / (M_PI * M_PI);
     print_message("    recharge %.6g m2/d (series %.6g, %.2f %%), rate %.4g m/d\n", s->recharge_flux, q,
@@ -415,11 +432,37 @@ static void test_toth1963_systems(void **state)
             for (int j = 0; j < s->nsystems; j++)
                 if (s->system[j].kind == GW_SYSTEM_REGIONAL)
                     assert_true(s->system[j].bottom < s->system[i].bottom);
-    assert_int_equal(s->ndivides, s->nsystems - 1);
+    /* Within a recharge area the systems are separated by dividing
+     * streamlines; between recharge areas by the discharge areas. */
+    int nrech = 0;
+    for (int i = 0; i < s->nareas; i++)
+        nrech += s->area[i].recharge;
+    assert_int_equal(s->ndivides, s->nsystems - nrech);
     const char *dump = getenv("GW_SECTION_DUMP");
     if (dump && *dump)
         dump_run(dump, &r, &w);
     (void)nint;
+    run_free(&r);
+}
+
+/* Bad input is an error value, not a crash: a plan-view problem, and a
+ * section whose top exchanges no water. */
+static void test_rejects(void **state)
+{
+    (void)state;
+    water_table w = {.c = 0.0, .a = 0.0, .L = BL};
+    run r = {.p = basin(&w, 20, 8, 1.0, KH)};
+    solve_section(&r);
+    assert_int_equal(r.s.nareas, 0);      /* flat water table: no flow, no areas */
+    assert_int_equal(r.s.nsystems, 0);
+    gw_section s2;
+    gw_error err = {{0}};
+    r.p->type = GW_CONFINED;
+    assert_int_equal(gw_section_analyse(r.p, &r.sol, &r.b, NULL, &s2, &err), -1);
+    print_message("    rejected: %s\n", err.msg);
+    r.p->type = GW_SECTION;
+    assert_int_equal(gw_section_trace(r.p, &r.sol, 10.0, Z0, NULL, NULL, NULL, NULL, &err), -1);
+    print_message("    rejected: %s\n", err.msg);
     run_free(&r);
 }
 
@@ -430,6 +473,7 @@ int main(void)
         cmocka_unit_test(test_toth1962_hinge),
         cmocka_unit_test(test_anisotropy_scaling),
         cmocka_unit_test(test_toth1963_systems),
+        cmocka_unit_test(test_rejects),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -7,8 +7,8 @@ PKGS=(
   libsuitesparse-dev libopenblas0-pthread libopenblas-dev
   libpng-dev libcmocka-dev libfyaml-dev libcairo2-dev libgdal-dev gdal-bin
   libgsl-dev
-  python3 python3-numpy python3-scipy python3-gdal
-  chromium
+  python3 python3-numpy python3-scipy python3-gdal python3-yaml
+  chromium fonts-dejavu-core
 )
 SUDO=""
 if [ "$(id -u)" -ne 0 ]; then SUDO="sudo"; fi

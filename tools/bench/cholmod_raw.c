@@ -3,10 +3,14 @@
  * with CHOLMOD's default settings, nothing else.  Prints one line
  * "key=value ..." for tools/bench/bench.py:
  *
- *     cholmod_raw PREFIX [amd|metis|nesdis|default]
+ *     cholmod_raw PREFIX [amd|metis|nesdis|grid|grid:LEAF|default]
  *
  * The optional second argument forces one ordering (for the ordering study
- * in docs/performance.md); the default is CHOLMOD's own choice. */
+ * in docs/performance.md); the default is CHOLMOD's own choice.  "grid" is
+ * the geometric nested dissection of solver/grid_order.h, built from the
+ * cell list PREFIX.cells.txt that the export writes beside the matrix;
+ * "grid:LEAF" stops the dissection at LEAF cells and lets CHOLMOD's
+ * constrained minimum degree (CAMD) order within the parts. */
 #include <cholmod.h>
 #include <math.h>
 #include <stdio.h>
@@ -14,6 +18,8 @@
 #include <string.h>
 #include <sys/resource.h>
 #include <time.h>
+
+#include "solver/grid_order.h"
 
 static double now(void)
 {
@@ -36,15 +42,91 @@ static FILE *open_with_suffix(const char *prefix, const char *suffix)
     return f;
 }
 
+/* Read PREFIX.cells.txt ("unknown column row" per line, 1-based) and order
+ * the unknowns with the grid nested dissection: pure (leaf 0), or split into
+ * pieces of at most `leaf` cells ordered by CHOLMOD's constrained minimum
+ * degree (CAMD) within the dissection's parts. */
+static int *grid_permutation(const char *prefix, cholmod_sparse *A, int leaf, cholmod_common *c)
+{
+    int n = (int)A->nrow;
+    FILE *f = open_with_suffix(prefix, ".cells.txt");
+    if (!f)
+        return NULL;
+    int *col = malloc((size_t)n * sizeof *col), *row = malloc((size_t)n * sizeof *row);
+    int *perm = malloc((size_t)n * sizeof *perm), *idx = NULL;
+    int nx = 0, ny = 0, j, cc, rr, got = 0;
+    char line[256];
+    while (col && row && perm && fgets(line, sizeof line, f)) {
+        if (line[0] == '#' || sscanf(line, "%d %d %d", &j, &cc, &rr) != 3 || j < 1 || j > n)
+            continue;
+        col[j - 1] = cc - 1;
+        row[j - 1] = rr - 1;
+        nx = cc > nx ? cc : nx;
+        ny = rr > ny ? rr : ny;
+        got++;
+    }
+    fclose(f);
+    if (got == n && (idx = malloc((size_t)nx * (size_t)ny * sizeof *idx))) {
+        for (size_t k = 0; k < (size_t)nx * (size_t)ny; k++)
+            idx[k] = -1;
+        for (j = 0; j < n; j++)
+            idx[(size_t)row[j] * (size_t)nx + (size_t)col[j]] = j;
+    }
+    int fail = !idx;
+    if (!fail && leaf <= 0)
+        fail = gw_grid_order(nx, ny, idx, n, perm) != 0;
+    else if (!fail) {
+        int *set = malloc((size_t)n * sizeof *set);
+        fail = !set || gw_grid_dissect(nx, ny, idx, n, leaf, set) < 0 ||
+               !cholmod_camd(A, NULL, 0, set, perm, c);
+        free(set);
+    }
+    if (fail) {
+        fprintf(stderr, "cholmod_raw: bad cell list for %s\n", prefix);
+        free(perm);
+        perm = NULL;
+    }
+    free(idx);
+    free(col);
+    free(row);
+    return perm;
+}
+
+/* The BLAS library actually mapped into this process (the symlink chain of
+ * libblas.so.3 is chosen by Debian's alternatives system), or "unknown". */
+static void loaded_blas(char *out, size_t len)
+{
+    snprintf(out, len, "unknown");
+    FILE *f = fopen("/proc/self/maps", "r");
+    if (!f)
+        return;
+    char line[512];
+    while (fgets(line, sizeof line, f)) {
+        char *path = strchr(line, '/');
+        if (path && (strstr(path, "blas") || strstr(path, "mkl"))) {
+            path[strcspn(path, "\n")] = 0;
+            snprintf(out, len, "%s", path);
+            break;
+        }
+    }
+    fclose(f);
+}
+
 int main(int argc, char **argv)
 {
     if (argc < 2) {
-        fprintf(stderr, "usage: cholmod_raw PREFIX [amd|metis|nesdis|default]\n");
+        fprintf(stderr, "usage: cholmod_raw PREFIX [amd|metis|nesdis|grid|grid:LEAF|default]\n");
         return 2;
     }
     cholmod_common c;
     cholmod_start(&c);
-    if (argc > 2 && strcmp(argv[2], "default") != 0) {
+    int use_grid = argc > 2 && !strncmp(argv[2], "grid", 4);
+    int leaf = use_grid && argv[2][4] == ':' ? atoi(argv[2] + 5) : 0;
+    if (use_grid) {
+        c.nmethods = 1;
+        c.method[0].ordering = CHOLMOD_GIVEN;
+        c.postorder = 1;
+    } else if (argc > 2 && strcmp(argv[2], "default") != 0) {
         c.nmethods = 1;
         c.method[0].ordering = !strcmp(argv[2], "amd")      ? CHOLMOD_AMD
                                : !strcmp(argv[2], "metis")  ? CHOLMOD_METIS
@@ -75,7 +157,14 @@ int main(int argc, char **argv)
     }
 
     t = now();
-    L = cholmod_analyze(A, &c);
+    int *perm = NULL;
+    if (use_grid) {
+        perm = grid_permutation(argv[1], A, leaf, &c);
+        if (!perm)
+            goto done;
+    }
+    L = cholmod_analyze_p(A, perm, NULL, 0, &c);
+    free(perm);
     double t_analyse = now() - t;
     t = now();
     int ok = L && cholmod_factorize(A, L, &c) && c.status == CHOLMOD_OK;
@@ -104,10 +193,12 @@ int main(int argc, char **argv)
                                                       : "other";
     struct rusage ru;
     getrusage(RUSAGE_SELF, &ru);
+    char blas[256];
+    loaded_blas(blas, sizeof blas);
     printf("n=%d nnz_A=%ld nnz_L=%.0f flops=%.4g ordering=%s read=%.4f analyse=%.4f factorize=%.4f "
-           "solve=%.4f residual=%.3g peak_mb=%.1f\n",
+           "solve=%.4f residual=%.3g peak_mb=%.1f blas=%s\n",
            (int)A->nrow, (long)cholmod_nnz(A, &c), c.lnz, c.fl, ord, t_read, t_analyse, t_factor,
-           t_solve, rel, ru.ru_maxrss / 1024.0);
+           t_solve, rel, ru.ru_maxrss / 1024.0, blas);
     rc = 0;
 done:
     cholmod_free_dense(&x, &c);

@@ -20,11 +20,41 @@ typedef struct {
 int gw_cmd_run(const gw_run_args *a);
 int gw_cmd_check(const char *model_path);
 
+/* `gwdivide sweep` (sweep.c). */
+typedef struct {
+    const char *model_path;
+    const char *out_dir;        /* NULL: "<model dir>/<model name>-sweep" */
+    const char **vary;          /* the --vary arguments, "KEY=FROM:TO:N" */
+    int nvary;
+    int zip;                    /* 1: pair values in order instead of every combination */
+    int quiet;
+} gw_sweep_args;
+
+int gw_cmd_sweep(const gw_sweep_args *a);
+
 /* Default output directory for a model path (malloc'ed). */
 char *gw_default_out_dir(const char *model_path);
 
 /* Terminal summary of a finished run; out_dir is where the files went. */
 void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir);
+
+/* Capture and travel-time zones of the pumping wells into r->capture, with
+ * their warnings (run_capture.c). */
+int gw_run_capture(gw_results *r, gw_error *err);
+
+/* Catchments, divides, no-divide pairs and stagnation points into
+ * r->divides (run_divides.c). */
+int gw_run_divides(gw_results *r, gw_error *err);
+
+/* Transect profiles (run_transects.c): computed after the divides, written
+ * as transect_<name>.csv into the staged output folder. */
+struct gw_outdir;
+int gw_run_transects(gw_results *r, gw_error *err);
+
+/* Cross-section mode: hinge points and flow systems into r->section
+ * (run_section.c); does nothing for plan-view models. */
+int gw_run_section(gw_results *r, gw_error *err);
+int gw_write_transects(const gw_results *r, struct gw_outdir *o, gw_error *err);
 
 /* Wall-clock seconds (monotonic). */
 double gw_now(void);

@@ -1,5 +1,5 @@
 /* gwdivide: command-line entry point.  Parses the arguments and hands over
- * to run.c / check.c. */
+ * to run.c / check.c / sweep.c. */
 #include <stdio.h>
 #include <string.h>
 
@@ -9,6 +9,7 @@ static const char *usage_text =
     "Usage:\n"
     "  gwdivide run MODEL.yaml [--out DIR] [--export-matrix PREFIX] [--quiet]\n"
     "  gwdivide check MODEL.yaml\n"
+    "  gwdivide sweep MODEL.yaml --vary KEY=FROM:TO:N [--vary ...] [--zip] [--out DIR] [--quiet]\n"
     "  gwdivide --help | --version\n";
 
 static const char *help_text =
@@ -20,12 +21,30 @@ static const char *help_text =
     "Commands:\n"
     "  run MODEL.yaml     solve the model and write the results\n"
     "  check MODEL.yaml   validate the model file without solving\n"
+    "  sweep MODEL.yaml   solve the model again for a range of values of some of\n"
+    "                     its numbers; report how budgets and divides move\n"
     "\n"
     "Options of run:\n"
     "  --out DIR               results folder (default: MODEL-results beside the\n"
     "                          model file); created when missing\n"
     "  --export-matrix PREFIX  also write the factorized linear system as\n"
     "                          PREFIX.mtx, PREFIX.rhs.mtx and PREFIX.cells.txt\n"
+    "  --quiet                 print nothing but errors\n"
+    "\n"
+    "Options of sweep:\n"
+    "  --vary KEY=FROM:TO:N    N evenly spaced values from FROM to TO (or\n"
+    "                          KEY=V1,V2,...) for the number at KEY, the dotted\n"
+    "                          path in the model file; list items by name or by\n"
+    "                          position from 0: recharge.rate,\n"
+    "                          aquifer.conductivity, streams[East Creek].stage\n"
+    "                          (every vertex; stage[1] for one),\n"
+    "                          wells[Supply well 1].pumping,\n"
+    "                          recharge.zones[orchard].rate.  Repeatable: every\n"
+    "                          combination of the values is run\n"
+    "  --zip                   pair the values of the --vary options in order\n"
+    "                          instead (all need the same count)\n"
+    "  --out DIR               results folder (default: MODEL-sweep beside the\n"
+    "                          model file): sweep.csv, sweep_divides.json\n"
     "  --quiet                 print nothing but errors\n"
     "\n"
     "Results: report.json, budget.csv, heads.tif (and maps and GIS layers when\n"
@@ -92,6 +111,37 @@ static int main_check(int argc, char **argv)
     return gw_cmd_check(model);
 }
 
+static int main_sweep(int argc, char **argv)
+{
+    gw_sweep_args a = {0};
+    const char *vary[64];
+    for (int i = 2; i < argc; i++) {
+        const char *v = NULL;
+        if (take_value(argc, argv, &i, "--out", &v)) {
+            if (!v || !*v) return usage_error("%s needs a directory", "--out");
+            a.out_dir = v;
+        } else if (take_value(argc, argv, &i, "--vary", &v)) {
+            if (!v || !*v) return usage_error("%s needs KEY=FROM:TO:N", "--vary");
+            if (a.nvary == (int)(sizeof vary / sizeof vary[0])) return usage_error("too many %s options", "--vary");
+            vary[a.nvary++] = v;
+        } else if (!strcmp(argv[i], "--zip")) {
+            a.zip = 1;
+        } else if (!strcmp(argv[i], "--quiet") || !strcmp(argv[i], "-q")) {
+            a.quiet = 1;
+        } else if (argv[i][0] == '-' && argv[i][1] != 0) {
+            return usage_error("unknown option %s", argv[i]);
+        } else if (a.model_path) {
+            return usage_error("one model file at a time (extra argument %s)", argv[i]);
+        } else {
+            a.model_path = argv[i];
+        }
+    }
+    if (!a.model_path) return usage_error("%s needs a model file", "sweep");
+    if (a.nvary == 0) return usage_error("%s needs at least one --vary KEY=FROM:TO:N", "sweep");
+    a.vary = vary;
+    return gw_cmd_sweep(&a);
+}
+
 int main(int argc, char **argv)
 {
     if (argc < 2) return usage_error("%s", "missing command");
@@ -107,5 +157,6 @@ int main(int argc, char **argv)
     }
     if (!strcmp(cmd, "run")) return main_run(argc, argv);
     if (!strcmp(cmd, "check")) return main_check(argc, argv);
+    if (!strcmp(cmd, "sweep")) return main_sweep(argc, argv);
     return usage_error("unknown command %s", cmd);
 }

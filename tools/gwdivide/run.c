@@ -8,10 +8,12 @@
 
 #include "../../io/budget_csv.h"
 #include "../../io/heads_tif.h"
+#include "../../io/map_results.h"
 #include "../../io/model.h"
 #include "../../io/outdir.h"
 #include "../../io/report_json.h"
 #include "../../io/results.h"
+#include "../../io/results_gpkg.h"
 #include "cli.h"
 
 double gw_now(void)
@@ -70,6 +72,7 @@ static int solve_stage(gw_results *r, const gw_run_args *a, gw_error *err)
 /* Write every output into the staged folder, then move them into place. */
 static int write_outputs(gw_results *r, const char *out_dir, gw_error *err)
 {
+    double t_out = gw_now();
     gw_outdir *o = gw_outdir_open(out_dir, err);
     if (!o) return -1;
     const char *path;
@@ -85,8 +88,16 @@ static int write_outputs(gw_results *r, const char *out_dir, gw_error *err)
     /* ---- further outputs (maps, GIS layers of divides, catchments,
      *      capture zones, contours) go here, each written to
      *      gw_outdir_path(o, NAME) ---- */
+    if (gw_write_transects(r, o, err) != 0) goto fail;
+    if (r->model->maps && gw_maps_write(r, o, err) != 0) goto fail;
+    /* GIS layers (plan view only: a section's y is elevation, not a map). */
+    if (r->problem->type != GW_SECTION &&
+        (!(path = gw_outdir_path(o, "results.gpkg", err)) || gw_results_gpkg_write(r, path, err) != 0))
+        goto fail;
 
-    /* report.json last: it is the file other programs look for first. */
+    /* report.json last: it is the file other programs look for first.  It
+     * records the time of every output before it. */
+    r->timing.outputs = gw_now() - t_out;
     if (!(path = gw_outdir_path(o, "report.json", err)) || gw_report_json_save(r, path, err) != 0) goto fail;
     rc = gw_outdir_commit(o, err);
     gw_outdir_free(o);
@@ -133,6 +144,14 @@ int gw_cmd_run(const gw_run_args *a)
     if (gw_results_observe(&r, &err) != 0) goto fail;
     /* ---- analyses (divides, catchments, capture zones, ...) go here,
      *      each storing its result in r (see io/results.h) ---- */
+    double ta = gw_now();
+    if (gw_run_divides(&r, &err) != 0) goto fail;
+    r.timing.divides = gw_now() - ta;
+    if (gw_run_transects(&r, &err) != 0) goto fail;
+    ta = gw_now();
+    if (gw_run_capture(&r, &err) != 0) goto fail;
+    r.timing.tracking = gw_now() - ta;
+    if (gw_run_section(&r, &err) != 0) goto fail;
     r.timing.analysis = gw_now() - t;
 
     if (gw_results_check(&r, &err) != 0 || gw_results_add_cautions(&r, &err) != 0) goto fail;

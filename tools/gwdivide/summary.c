@@ -60,6 +60,68 @@ static void describe(char *buf, size_t n, const gw_feature *ft, const gw_feature
     }
 }
 
+/* Divides, features without one, catchments and stagnation points. */
+static void print_divides(FILE *f, const gw_results *r, const char *Q)
+{
+    const gw_divide_analysis *a = r->divides;
+    const gw_model *m = r->model;
+    const char *L = m->length_unit ? m->length_unit : "";
+    const char *T = m->time_unit ? m->time_unit : "";
+    fprintf(f, "\nDivides and catchments\n");
+    for (int i = 0; i < a->divides.n; i++) {
+        const gw_divide *d = &a->divides.d[i];
+        double len = 0.0;
+        for (int k = 0; k + 1 < d->npts; k++)
+            len += hypot(d->xy[2 * k + 2] - d->xy[2 * k], d->xy[2 * k + 3] - d->xy[2 * k + 1]);
+        fprintf(f, "  divide between %s and %s: %.4g %s long, from (%.6g, %.6g) to (%.6g, %.6g)%s\n",
+                gw_results_feature_name(r, d->a), gw_results_feature_name(r, d->b), len, L, d->xy[0], d->xy[1],
+                d->xy[2 * d->npts - 2], d->xy[2 * d->npts - 1], d->closed ? " (closed loop)" : "");
+    }
+    for (int i = 0; i < a->nno_divide; i++) {
+        char line[512];
+        gw_no_divide_describe(&a->no_divide[i], gw_results_feature_name(r, a->no_divide[i].losing),
+                              gw_results_feature_name(r, a->no_divide[i].receiving), L, T, line, sizeof line);
+        fprintf(f, "  %s\n", line);
+    }
+    if (a->divides.n == 0 && a->nno_divide == 0)
+        fprintf(f, "  no divides: all water ends in one feature\n");
+    const gw_catchments *c = &a->catchments;
+    for (int k = 0; k < c->nfeatures; k++)
+        if (c->discharge[k])
+            fprintf(f, "  catchment of %-28.28s %.6g %s2, recharge %.6g %s\n", gw_results_feature_name(r, k),
+                    c->area[k], L, c->recharge[k], Q);
+    for (int i = 0; i < a->nstagnation; i++)
+        fprintf(f, "  stagnation point (%s) at (%.6g, %.6g), head %.6g %s\n",
+                gw_stag_type_name(a->stagnation[i].type), a->stagnation[i].x, a->stagnation[i].y,
+                a->stagnation[i].head, L);
+}
+
+/* Capture zones: area, source split, travel-time zone areas. */
+static void print_capture(FILE *f, const gw_results *r, const char *Q)
+{
+    const gw_model *m = r->model;
+    const char *L = m->length_unit ? m->length_unit : "";
+    const char *T = m->time_unit ? m->time_unit : "";
+    const gw_capture *c = r->capture;
+    fprintf(f, "\nWell capture zones (steady state; share of the pumped water by source)\n");
+    for (int i = 0; i < c->nzone; i++) {
+        const gw_capture_zone *z = &c->zone[i];
+        fprintf(f, "  %-28.28s pumping %.6g %s, capture zone %.6g %s2\n", gw_results_feature_name(r, z->feature),
+                z->rate, Q, z->capture.area, L);
+        fprintf(f, "    sources:");
+        int any = 0;
+        for (int k = 0; k < c->nfeatures; k++) {
+            if (!(z->source[k] > 1e-3 * z->rate)) continue;
+            fprintf(f, "%s %s %.1f %%", any ? "," : "", k == 0 ? "recharge" : gw_results_feature_name(r, k),
+                    100.0 * z->source[k] / z->rate);
+            any = 1;
+        }
+        fprintf(f, "%s\n", any ? "" : " none found");
+        for (int t = 0; t < z->nttz; t++)
+            fprintf(f, "    within %g %s: %.6g %s2\n", z->ttz[t].time, T, z->ttz[t].area, L);
+    }
+}
+
 void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir)
 {
     const gw_model *m = r->model;
@@ -94,6 +156,8 @@ void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir)
     }
 
     /* ---- analysis summaries (divides, catchments, capture zones) go here ---- */
+    if (r->divides) print_divides(f, r, Q);
+    if (r->capture && r->capture->nzone > 0) print_capture(f, r, Q);
 
     if (r->nobs > 0) {
         fprintf(f, "\nObservation wells (head, %s; residual = observed - simulated)\n", L);

@@ -1,0 +1,78 @@
+/* The capture-zone stage of `gwdivide run`: flow field, Pollock tracking
+ * and zone tracing for every pumping well, plus the warnings a reader of
+ * the zones needs (weak well cells, weak sinks passed, unfinished paths). */
+#include <stdio.h>
+#include <stdlib.h>
+
+#include "../../solver/capture.h"
+#include "../../solver/flowfield.h"
+#include "cli.h"
+
+static int warn_zone(gw_results *r, const gw_capture_zone *z, gw_error *err)
+{
+    const char *name = gw_results_feature_name(r, z->feature);
+    if (z->well_cell_share < 0.999 &&
+        gw_strlist_add(&r->warnings,
+                       "well '%s' takes only %.0f %% of the water entering its cell (a weak sink); its "
+                       "capture zone is drawn as if it took all of it, so it is larger than the area "
+                       "that really feeds the well", name, 100.0 * z->well_cell_share) != 0)
+        return gw_fail(err, "out of memory");
+    if (z->weak_pass_share > 0.0 &&
+        gw_strlist_add(&r->warnings,
+                       "%.0f %% of the paths into well '%s' pass a stream, drain or well cell that takes "
+                       "part of the water; as little as %.0f %% of the water on such a path reaches the well",
+                       100.0 * z->weak_pass_share, name, 100.0 * z->min_retained) != 0)
+        return gw_fail(err, "out of memory");
+    if (z->ends[GW_END_MAX_STEPS] > 0 &&
+        gw_strlist_add(&r->warnings,
+                       "%ld paths traced for well '%s' were stopped after the maximum number of cells",
+                       z->ends[GW_END_MAX_STEPS], name) != 0)
+        return gw_fail(err, "out of memory");
+    if (z->capture.outer < 0 &&
+        gw_strlist_add(&r->warnings, "no capture zone could be drawn for well '%s' (no path reaches it)",
+                       name) != 0)
+        return gw_fail(err, "out of memory");
+    return 0;
+}
+
+int gw_run_capture(gw_results *r, gw_error *err)
+{
+    const gw_model *m = r->model;
+    const gw_problem *p = r->problem;
+    if (!m->capture || p->type == GW_SECTION || p->nwells == 0 || !r->have_solution)
+        return 0;
+    gw_flowfield ff;
+    if (gw_flowfield_compute(p, &r->solution, &ff, err) != 0)
+        return -1;
+    gw_capture_options o;
+    gw_capture_options_default(&o);
+    o.times = m->travel_times;
+    o.ntimes = m->ntravel_times;
+    gw_capture *c = calloc(1, sizeof *c);
+    if (!c) {
+        gw_flowfield_free(&ff);
+        return gw_fail(err, "out of memory");
+    }
+    int rc = gw_capture_compute(p, &ff, &o, c, err);
+    gw_flowfield_free(&ff);
+    if (rc != 0) {
+        free(c);
+        return -1;
+    }
+    r->capture = c;
+    for (int i = 0; i < c->nzone; i++)
+        if (warn_zone(r, &c->zone[i], err) != 0)
+            return -1;
+    char por[64];
+    if (m->porosity.kind == GW_PROP_VALUE)
+        snprintf(por, sizeof por, "%g here", m->porosity.value);
+    else
+        snprintf(por, sizeof por, "as mapped");
+    if (c->nzone > 0 &&
+        gw_strlist_add(&r->cautions,
+                       "Capture zones are steady-state areas (unlimited time); travel times are in "
+                       "proportion to the effective porosity (%s) and ignore dispersion, storage and "
+                       "travel through the unsaturated zone.", por) != 0)
+        return gw_fail(err, "out of memory");
+    return 0;
+}
