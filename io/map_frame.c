@@ -133,6 +133,77 @@ void gw_map_path_add(gw_map_page *pg, const gw_map_path *p, int polygon)
     if (polygon) cairo_close_path(cr);
 }
 
+int gw_map_reserve_path(gw_map_page *pg, const gw_map_path *p, int polygon, double clear, int tag)
+{
+    if (p->n < 2) return 0;
+    double *pxy = malloc((size_t)p->n * 2 * sizeof(double));
+    if (!pxy) return -1;
+    for (int i = 0; i < p->n; i++) {
+        pxy[2 * i] = gw_canvas_px(&pg->cv, p->xy[2 * i]);
+        pxy[2 * i + 1] = gw_canvas_py(&pg->cv, p->xy[2 * i + 1]);
+    }
+    int rc = gw_labels_reserve_line(&pg->labels, pxy, p->n, polygon, clear, tag);
+    free(pxy);
+    return rc;
+}
+
+int gw_map_reserve_features(gw_map_page *pg, const gw_problem *p, const gw_map_layers *l,
+                            double line_clear, double divide_clear)
+{
+    for (int i = 0; i < l->ngeoms; i++) {
+        gw_feature_type t = p->features[l->geoms[i].feature].type;
+        if (t != GW_FEAT_STREAM && t != GW_FEAT_DRAIN) continue;
+        if (gw_map_reserve_path(pg, &l->geoms[i].path, l->geoms[i].polygon, line_clear,
+                                GW_MAP_TAG_GEOM + i) != 0)
+            return -1;
+    }
+    for (int i = 0; i < l->ndivides; i++)
+        if (gw_map_reserve_path(pg, &l->divides[i].line, 0, divide_clear, GW_MAP_TAG_DIVIDE + i) != 0)
+            return -1;
+    return 0;
+}
+
+int gw_map_place_feature_names(gw_map_page *pg, const gw_problem *p, const gw_map_layers *l,
+                               const gw_text_style *st, const gw_text_style *drain_st, double off)
+{
+    for (int i = 0; i < l->ngeoms; i++) {
+        const gw_map_geom *ge = &l->geoms[i];
+        const char *name = p->features[ge->feature].name;
+        int n = ge->path.n;
+        if (!name || n < 2) continue;
+        const gw_text_style *s = p->features[ge->feature].type == GW_FEAT_DRAIN ? drain_st : st;
+        double w, h;
+        gw_canvas_text_size(&pg->cv, name, s, &w, &h);
+        double *pxy = malloc((size_t)n * 4 * sizeof(double));
+        if (!pxy) return -1;
+        double *q = pxy + 2 * n;
+        for (int k = 0; k < n; k++) {
+            pxy[2 * k] = gw_canvas_px(&pg->cv, ge->path.xy[2 * k]);
+            pxy[2 * k + 1] = gw_canvas_py(&pg->cv, ge->path.xy[2 * k + 1]);
+        }
+        /* The line shifted sideways by `off` plus half the text height: a
+         * label laid along it sits beside the feature, not on it. */
+        gw_label_box box;
+        int got = 0;
+        for (int side = -1; side <= 1 && !got; side += 2) {
+            for (int k = 0; k < n; k++) {
+                int a = k > 0 ? k - 1 : k, b = k + 1 < n ? k + 1 : k;
+                double dx = pxy[2 * b] - pxy[2 * a], dy = pxy[2 * b + 1] - pxy[2 * a + 1];
+                double L = hypot(dx, dy);
+                double nx = L > 0 ? -dy / L : 0, ny = L > 0 ? dx / L : 0;
+                double o = side * (0.5 * h + off);
+                q[2 * k] = pxy[2 * k] + nx * o;
+                q[2 * k + 1] = pxy[2 * k + 1] + ny * o;
+            }
+            got = gw_labels_along_line(&pg->labels, q, n, w, h, 1e9, &box, 1);
+            if (got < 0) { free(pxy); return -1; }
+        }
+        free(pxy);
+        if (got == 1 && gw_map_queue_text(pg, &box, name, s) != 0) return -1;
+    }
+    return 0;
+}
+
 void gw_map_sym_well(cairo_t *cr, double x, double y, double r, int injecting)
 {
     cairo_save(cr);

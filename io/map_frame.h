@@ -57,6 +57,25 @@ void gw_map_stroke_divide(cairo_t *cr, double width);
 /* Path of a map polyline on the canvas (closed when polygon). */
 void gw_map_path_add(gw_map_page *pg, const gw_map_path *p, int polygon);
 
+/* Keep labels off a drawn map line: record path p (map coordinates) in
+ * pg->labels as an obstacle `clear` px wide on each side, under `tag`.
+ * Returns 0, -1 out of memory. */
+int gw_map_reserve_path(gw_map_page *pg, const gw_map_path *p, int polygon, double clear, int tag);
+
+/* Tags of the obstacle lines the maps reserve. */
+enum { GW_MAP_TAG_GEOM = 0, GW_MAP_TAG_DIVIDE = 100000, GW_MAP_TAG_ZONE = 200000 };
+
+/* Reserve every stream and drain line (clearance line_clear px) and every
+ * divide (divide_clear px), so no label is put across them. */
+int gw_map_reserve_features(gw_map_page *pg, const gw_problem *p, const gw_map_layers *l,
+                            double line_clear, double divide_clear);
+
+/* One name per drawn feature, beside its line (`off` px from it, on
+ * whichever side has room), near the middle of the line.  Drains take
+ * drain_st, the others st. */
+int gw_map_place_feature_names(gw_map_page *pg, const gw_problem *p, const gw_map_layers *l,
+                               const gw_text_style *st, const gw_text_style *drain_st, double off);
+
 /* Radius (px) of a well symbol for |rate| against the largest |rate|. */
 double gw_map_well_radius(const gw_map_page *pg, double rate, double maxrate);
 

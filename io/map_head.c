@@ -276,54 +276,6 @@ static int draw_streams(gw_map_page *pg, const gw_problem *p, const gw_budget *b
     return 0;
 }
 
-/* Feature names along their lines (one label each, where there is room). */
-static int place_feature_names(gw_map_page *pg, const gw_problem *p, const gw_map_layers *l)
-{
-    gw_text_style st = gw_map_style(pg, 10, 1);
-    st.r = GAIN_RGB[0]; st.g = GAIN_RGB[1]; st.b = GAIN_RGB[2];
-    st.halo = 2.5 * pg->fs;
-    for (int i = 0; i < l->ngeoms; i++) {
-        const gw_map_geom *ge = &l->geoms[i];
-        const char *name = p->features[ge->feature].name;
-        if (!name || ge->path.n < 2) continue;
-        gw_text_style s = st;
-        if (p->features[ge->feature].type == GW_FEAT_DRAIN) {
-            s.r = DRAIN_RGB[0]; s.g = DRAIN_RGB[1]; s.b = DRAIN_RGB[2];
-        }
-        double *pxy = malloc((size_t)ge->path.n * 2 * sizeof(double));
-        if (!pxy) return -1;
-        for (int k = 0; k < ge->path.n; k++) {
-            pxy[2 * k] = gw_canvas_px(&pg->cv, ge->path.xy[2 * k]);
-            pxy[2 * k + 1] = gw_canvas_py(&pg->cv, ge->path.xy[2 * k + 1]);
-        }
-        double w, h;
-        gw_canvas_text_size(&pg->cv, name, &s, &w, &h);
-        /* Offset the label beside the line: shift every vertex sideways by
-         * the line half-width plus half the text height. */
-        gw_label_box box;
-        int got = 0;
-        for (int side = -1; side <= 1 && !got; side += 2) {
-            double *q = malloc((size_t)ge->path.n * 2 * sizeof(double));
-            if (!q) { free(pxy); return -1; }
-            for (int k = 0; k < ge->path.n; k++) {
-                int a = k > 0 ? k - 1 : k, bb = k + 1 < ge->path.n ? k + 1 : k;
-                double dx = pxy[2 * bb] - pxy[2 * a], dy = pxy[2 * bb + 1] - pxy[2 * a + 1];
-                double L = hypot(dx, dy);
-                double nx = L > 0 ? -dy / L : 0, ny = L > 0 ? dx / L : 0;
-                double off = side * (0.5 * h + 11 * pg->fs);
-                q[2 * k] = pxy[2 * k] + nx * off;
-                q[2 * k + 1] = pxy[2 * k + 1] + ny * off;
-            }
-            got = gw_labels_along_line(&pg->labels, q, ge->path.n, w, h, 1e9, &box, 1);
-            free(q);
-            if (got < 0) { free(pxy); return -1; }
-        }
-        free(pxy);
-        if (got == 1 && gw_map_queue_text(pg, &box, name, &s) != 0) return -1;
-    }
-    return 0;
-}
-
 /* Link cells whose feature has no drawn geometry: small squares. */
 static void draw_link_cells(gw_map_page *pg, const gw_problem *p, const gw_budget *b,
                             const gw_map_layers *l)
@@ -460,7 +412,11 @@ int gw_map_head_write(const gw_problem *p, const double *head, const gw_budget *
     int have_fixed = draw_fixed(&pg, p);
     if (gw_contour_trace(g, head, interval, &cs, err) != 0) goto done;
 
-    /* ---- layout: symbols first, then their labels, then contour labels */
+    /* ---- layout: feature lines and symbols first, then their labels, then
+     * contour labels, so no label lands on a stream, drain or divide.
+     * Clearances: half the widest stream stroke with its casing (5.25 px
+     * at 1400 px) plus a margin; half a cased divide plus a margin. */
+    if (gw_map_reserve_features(&pg, p, l, 7 * fs, 5 * fs) != 0) goto oom;
     if (gw_map_place_wells(&pg, p) != 0) goto oom;
     if (gw_map_place_stagnation(&pg, l) != 0) goto oom;
     gw_text_style ost = gw_map_style(&pg, 9.5, 0);
@@ -483,7 +439,14 @@ int gw_map_head_write(const gw_problem *p, const double *head, const gw_budget *
         }
         if (gw_map_point_label(&pg, x, y, 12 * fs, txt, &ost) < 0) goto oom;
     }
-    if (place_feature_names(&pg, p, l) != 0) goto oom;
+    {
+        gw_text_style fst = gw_map_style(&pg, 10, 1), dst;
+        fst.r = GAIN_RGB[0]; fst.g = GAIN_RGB[1]; fst.b = GAIN_RGB[2];
+        fst.halo = 2.5 * fs;
+        dst = fst;
+        dst.r = DRAIN_RGB[0]; dst.g = DRAIN_RGB[1]; dst.b = DRAIN_RGB[2];
+        if (gw_map_place_feature_names(&pg, p, l, &fst, &dst, 11 * fs) != 0) goto oom;
+    }
 
     pl = calloc((size_t)(cs.nlines ? cs.nlines : 1), sizeof *pl);
     if (!pl) goto oom;

@@ -113,6 +113,25 @@ typedef struct {
     gw_src src;
 } gw_transect_spec;
 
+/* Cross-section top (aquifer.type: section only).  The water table fixes
+ * the cells its line crosses at `elevation` (per vertex, linear along the
+ * line; when not given, the line's own elevations) and makes every cell
+ * above it in the same column inactive.  A seepage face lets water out,
+ * never in, where its line lies above `elevation` (model_build.c). */
+typedef struct {
+    char *name;
+    gw_path line;
+    gw_values elevation;   /* n == 0: the line's own elevations */
+    gw_src src;
+} gw_water_table_spec;
+
+typedef struct {
+    char *name;
+    gw_path line;
+    double elevation;      /* the face starts above this elevation */
+    gw_src src;
+} gw_seepage_spec;
+
 typedef struct {
     char *path;                 /* the model file as given */
     char *dir;                  /* its directory, for relative paths */
@@ -136,6 +155,8 @@ typedef struct {
     gw_well_spec *wells;       int nwells;
     gw_obs_spec *obs;          int nobs;
     gw_leakage_spec *leakage;  int nleakage;
+    gw_water_table_spec *water_table;   /* section only; NULL: none */
+    gw_seepage_spec *seepage;  int nseepage;
 
     /* analysis: */
     int divides;                /* default 1 */

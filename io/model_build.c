@@ -247,6 +247,112 @@ static int add_well(const gw_model *m, gw_problem *p, const gw_well_spec *w, gw_
     return gw_problem_add_well(p, &wl, err);
 }
 
+/* Water table (section): the cells its line crosses are fixed at the
+ * elevation given along it (by default the line's own elevation), and the
+ * cells above the topmost crossed cell of each column leave the model, so
+ * the active section ends at the water table. */
+static int add_water_table(const gw_model *m, gw_problem *p, const gw_water_table_spec *w, gw_error *err)
+{
+    const gw_grid *g = &m->grid;
+    gw_values own = { 0 };
+    const gw_values *ev = &w->elevation;
+    if (!ev->v) {
+        own.v = malloc((size_t)(w->line.n > 0 ? w->line.n : 1) * sizeof *own.v);
+        if (!own.v) return gw_fail(err, "out of memory placing the water table");
+        for (int i = 0; i < w->line.n; i++) own.v[i] = w->line.xy[2 * i + 1];
+        own.n = w->line.n;
+        ev = &own;
+    }
+    cell_sum *cs;
+    int ncs;
+    int rc = line_cells(g, &w->line, ev, NULL, NULL, &cs, &ncs, err);
+    free(own.v);
+    if (rc < 0) return -1;
+    int *top = malloc((size_t)g->nx * sizeof *top);
+    int fi = top ? gw_problem_add_feature(p, w->name, GW_FEAT_FIXED_HEAD, err) : -1;
+    if (fi < 0) {
+        free(cs);
+        free(top);
+        return top ? -1 : gw_fail(err, "out of memory placing the water table");
+    }
+    for (int c = 0; c < g->nx; c++) top[c] = g->ny;
+    for (int i = 0; i < ncs; i++)
+        if (cs[i].len > 0.0 && cs[i].cell / g->nx < top[cs[i].cell % g->nx])
+            top[cs[i].cell % g->nx] = cs[i].cell / g->nx;
+    for (int c = 0; c < g->nx; c++)   /* rows count down from the top edge */
+        for (int r = 0; r < top[c] && top[c] < g->ny; r++) p->active[(size_t)r * g->nx + c] = 0;
+    int used = 0;
+    for (int i = 0; i < ncs; i++) {
+        int k = cs[i].cell;
+        if (!p->active[k] || !(cs[i].len > 0.0)) continue;
+        p->fixed[k] = cs[i].a / cs[i].len;
+        p->fixed_feature[k] = fi;
+        used++;
+    }
+    free(cs);
+    free(top);
+    if (!used)
+        return gw_fail(err, "%s:%d:%d: water table '%s' crosses no active cell", AT(w->src), w->name);
+    return 0;
+}
+
+/* Seepage face (section): outflow-only links where the line lies above
+ * `elevation`.  Water leaves at atmospheric pressure, so the reference head
+ * is the line's own elevation in the cell.  The conductance is that of the
+ * half cell between the cell centre and the face: K_n x (length of line in
+ * the cell, per unit width) / (half the cell's extent across the line),
+ * K_n the conductivity normal to the line (horizontal K, vertical K = K x
+ * anisotropy).  Outflow is then limited by the aquifer, not by the face. */
+static int add_seepage(const gw_model *m, gw_problem *p, const gw_seepage_spec *sp, gw_error *err)
+{
+    const gw_grid *g = &m->grid;
+    const gw_path *ln = &sp->line;
+    int fi = gw_problem_add_feature(p, sp->name, GW_FEAT_DRAIN, err);
+    if (fi < 0) return -1;
+    gw_line_piece *pc = NULL;
+    int npc = 0, used = 0;
+    if (gw_rasterize_line(g, ln->xy, ln->n, &pc, &npc, err) < 0) return -1;
+    double *cum = malloc((size_t)ln->n * sizeof *cum), *ys = malloc((size_t)ln->n * sizeof *ys);
+    if (!cum || !ys) {
+        free(pc); free(cum); free(ys);
+        return gw_fail(err, "out of memory placing seepage face '%s'", sp->name);
+    }
+    for (int i = 0; i < ln->n; i++) ys[i] = ln->xy[2 * i + 1];
+    gw_polyline_chainage(ln->xy, ln->n, cum);
+    qsort(pc, (size_t)npc, sizeof *pc, cmp_piece);
+    for (int i = 0; i < npc;) {
+        int k = pc[i].cell;
+        double len = 0.0, ysum = 0.0, cond = 0.0;
+        for (; i < npc && pc[i].cell == k; i++) {
+            double y = gw_interp_chainage(cum, ys, ln->n, pc[i].s_mid);
+            if (!(pc[i].length > 0.0) || !(y > sp->elevation) || !p->active[k]) continue;
+            int sg = pc[i].segment;
+            double tx = ln->xy[2 * sg + 2] - ln->xy[2 * sg], ty = ln->xy[2 * sg + 3] - ln->xy[2 * sg + 1];
+            double tl = hypot(tx, ty), nx = -ty / tl, ny = tx / tl;
+            double kn = p->k[k] * (nx * nx + p->anis[k] * ny * ny);
+            double half = 0.5 * (fabs(nx) * g->dx + fabs(ny) * g->dy);
+            len += pc[i].length;
+            ysum += pc[i].length * y;
+            cond += kn * pc[i].length / half;
+        }
+        if (!(len > 0.0)) continue;
+        gw_link l = { .cell = k, .feature = fi, .kind = GW_LINK_DRAIN, .cond = cond,
+                      .ref = ysum / len, .floor = ysum / len };
+        if (gw_problem_add_link(p, &l, err) < 0) {
+            free(pc); free(cum); free(ys);
+            return -1;
+        }
+        used++;
+    }
+    free(pc);
+    free(cum);
+    free(ys);
+    if (!used)
+        return gw_fail(err, "%s:%d:%d: seepage face '%s': no part of its line above elevation %g crosses an "
+                       "active cell", AT(sp->src), sp->name, sp->elevation);
+    return 0;
+}
+
 static int build_cells(const gw_model *m, gw_problem *p, gw_error *err)
 {
     const gw_grid *g = &m->grid;
@@ -292,6 +398,7 @@ gw_problem *gw_model_build(const gw_model *m, gw_error *err)
     gw_problem *p = gw_problem_new(&m->grid, m->aquifer_type, err);
     if (!p) return NULL;
     if (build_cells(m, p, err) < 0) goto fail;
+    if (m->water_table && add_water_table(m, p, m->water_table, err) < 0) goto fail;
     for (int i = 0; i < m->nfixed; i++)
         if (add_fixed(m, p, &m->fixed[i], err) < 0) goto fail;
     for (int i = 0; i < m->nstreams; i++) {
@@ -310,6 +417,8 @@ gw_problem *gw_model_build(const gw_model *m, gw_error *err)
         if (add_well(m, p, &m->wells[i], err) < 0) goto fail;
     for (int i = 0; i < m->nleakage; i++)
         if (add_leakage(m, p, &m->leakage[i], err) < 0) goto fail;
+    for (int i = 0; i < m->nseepage; i++)
+        if (add_seepage(m, p, &m->seepage[i], err) < 0) goto fail;
     if (gw_problem_check_bounded(p, err) < 0) {
         gw_fail_prefix(err, "%s: ", m->path ? m->path : "(model)");
         goto fail;

@@ -135,6 +135,13 @@ int gw_model_check(const gw_model *m, gw_error *err)
         if (m->leakage[i].polygon.n) check_polygon(&ms, g, "leakage", m->leakage[i].name, &m->leakage[i].polygon);
     for (int i = 0; i < m->ntransects; i++)
         check_line(&ms, g, "transect", m->transects[i].name, &m->transects[i].line);
+    if (m->water_table) {
+        const gw_water_table_spec *w = m->water_table;
+        check_line(&ms, g, "water table", w->name, &w->line);
+        check_count(&ms, "water table", w->name, "elevation", &w->elevation, &w->line);
+    }
+    for (int i = 0; i < m->nseepage; i++)
+        check_line(&ms, g, "seepage face", m->seepage[i].name, &m->seepage[i].line);
 
     if (ms.count) return gw_msgs_fail(&ms, err);
     gw_msgs_free(&ms);

@@ -85,6 +85,18 @@ void gw_model_free(gw_model *m)
         path_free(&m->leakage[i].polygon);
     }
     free(m->leakage);
+    if (m->water_table) {
+        free(m->water_table->name);
+        path_free(&m->water_table->line);
+        free(m->water_table->elevation.v);
+        free(m->water_table->elevation.field);
+        free(m->water_table);
+    }
+    for (int i = 0; i < m->nseepage; i++) {
+        free(m->seepage[i].name);
+        path_free(&m->seepage[i].line);
+    }
+    free(m->seepage);
     free(m->travel_times);
     for (int i = 0; i < m->ntransects; i++) {
         free(m->transects[i].name);

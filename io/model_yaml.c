@@ -555,6 +555,72 @@ static void parse_leakage(P *p, const gw_ynode *n)
     }
 }
 
+/* Cross-section top.  Lines are [[x, z], ...] in the section's own
+ * coordinates; GIS layers have no elevation axis, so they are refused. */
+static int section_line(P *p, const gw_ynode *it, const char *what, gw_path *out)
+{
+    const gw_ynode *l = gw_yrequire(p->msgs, it, "line", what);
+    if (!l) return -1;
+    if (l->kind == GW_YMAP) {
+        gw_msgs_add(p->msgs, l->line, l->col,
+                    "%s: line: give the line as [[x, z], ...] in section coordinates (a GIS layer "
+                    "has no elevation axis)", what);
+        return -1;
+    }
+    return geom_of(p, l, "line", what, GW_GEOM_LINE, out);
+}
+
+static int section_only(P *p, const gw_ynode *n, const char *key)
+{
+    if (p->m->aquifer_type == GW_SECTION) return 0;
+    gw_msgs_add(p->msgs, n->line, n->col,
+                "%s is for cross-sections only (aquifer.type: section); in plan view use %s", key,
+                !strcmp(key, "water_table") ? "fixed_heads" : "drains");
+    return -1;
+}
+
+static void parse_water_table(P *p, const gw_ynode *n)
+{
+    static const char *const keys[] = { "name", "line", "elevation", NULL };
+    gw_model *m = p->m;
+    if (section_only(p, n, "water_table") < 0 || !gw_yis_map(p->msgs, n, "water_table")) return;
+    gw_ycheck_keys(p->msgs, n, "water_table", keys);
+    m->water_table = calloc(1, sizeof *m->water_table);
+    if (!m->water_table) { gw_msgs_add(p->msgs, n->line, n->col, "out of memory"); return; }
+    gw_water_table_spec *w = m->water_table;
+    w->src = src_of(p, n);
+    const gw_ynode *nm = gw_ymap_get(n, "name");
+    if (nm) gw_yget_string(p->msgs, nm, "water_table: name", &w->name);
+    else if (!(w->name = strdup("Water table"))) gw_msgs_add(p->msgs, n->line, n->col, "out of memory");
+    section_line(p, n, "water_table", &w->line);
+    if (gw_ymap_get(n, "elevation")) values_of(p, n, "elevation", "water_table", C_ANY, &w->elevation);
+    if (w->elevation.field)
+        gw_msgs_add(p->msgs, w->elevation.src.line, w->elevation.src.col,
+                    "water_table: elevation: give numbers (one, or one per vertex), not a layer field");
+}
+
+static void parse_seepage(P *p, const gw_ynode *n)
+{
+    static const char *const keys[] = { "name", "line", "elevation", NULL };
+    gw_model *m = p->m;
+    if (section_only(p, n, "seepage") < 0 || !gw_yis_seq(p->msgs, n, "seepage")) return;
+    ALLOC_LIST(m->seepage, m->nseepage, n);
+    for (int i = 0; i < n->n; i++) {
+        gw_seepage_spec *s = &m->seepage[m->nseepage++];
+        char what[200];
+        const gw_ynode *it = feature_item(p, n, i, "seepage", "seepage face", keys, &s->name, &s->src,
+                                          what, sizeof what);
+        if (!it) continue;
+        if (p->name_field) {
+            gw_msgs_add(p->msgs, it->line, it->col, "%s: name: give a name, not a layer field", what);
+            free(p->name_field);
+            p->name_field = NULL;
+        }
+        section_line(p, it, what, &s->line);
+        number_of(p, it, "elevation", what, C_ANY, &s->elevation);
+    }
+}
+
 static void parse_analysis(P *p, const gw_ynode *n)
 {
     static const char *const keys[] = { "divides", "capture", "transects", NULL };
@@ -637,7 +703,7 @@ static void check_unique(P *p, named_t *v, int n, const char *kind)
 static void check_names(P *p)
 {
     gw_model *m = p->m;
-    int n = m->nfixed + m->nstreams + m->ndrains + m->nwells + m->nleakage;
+    int n = m->nfixed + m->nstreams + m->ndrains + m->nwells + m->nleakage + m->nseepage + 1;
     int cap = n > m->nobs ? n : m->nobs;
     if (m->ntransects > cap) cap = m->ntransects;
     named_t *v = calloc((size_t)cap + 1, sizeof *v);
@@ -648,6 +714,8 @@ static void check_names(P *p)
     for (int i = 0; i < m->ndrains; i++) v[k++] = (named_t){ m->drains[i].name, m->drains[i].src };
     for (int i = 0; i < m->nwells; i++) v[k++] = (named_t){ m->wells[i].name, m->wells[i].src };
     for (int i = 0; i < m->nleakage; i++) v[k++] = (named_t){ m->leakage[i].name, m->leakage[i].src };
+    if (m->water_table) v[k++] = (named_t){ m->water_table->name, m->water_table->src };
+    for (int i = 0; i < m->nseepage; i++) v[k++] = (named_t){ m->seepage[i].name, m->seepage[i].src };
     check_unique(p, v, k, "feature");
     for (int i = 0; i < m->nobs; i++) v[i] = (named_t){ m->obs[i].name, m->obs[i].src };
     check_unique(p, v, m->nobs, "observation");
@@ -660,7 +728,7 @@ static void parse_root(P *p, const gw_ynode *root)
 {
     static const char *const keys[] = { "title", "units", "grid", "aquifer", "recharge", "fixed_heads",
                                         "streams", "drains", "wells", "observations", "leakage",
-                                        "analysis", "output", "solver", NULL };
+                                        "water_table", "seepage", "analysis", "output", "solver", NULL };
     gw_model *m = p->m;
     if (!root || (root->kind == GW_YSCALAR && root->empty)) {
         gw_msgs_add(p->msgs, 1, 1, "the model file is empty (expected title, units, grid, aquifer, ...)");
@@ -685,6 +753,8 @@ static void parse_root(P *p, const gw_ynode *root)
     if ((v = gw_ymap_get(root, "wells"))) parse_wells(p, v);
     if ((v = gw_ymap_get(root, "observations"))) parse_obs(p, v);
     if ((v = gw_ymap_get(root, "leakage"))) parse_leakage(p, v);
+    if ((v = gw_ymap_get(root, "water_table"))) parse_water_table(p, v);
+    if ((v = gw_ymap_get(root, "seepage"))) parse_seepage(p, v);
     if ((v = gw_ymap_get(root, "analysis"))) parse_analysis(p, v);
     if ((v = gw_ymap_get(root, "output"))) parse_output(p, v);
     if ((v = gw_ymap_get(root, "solver"))) parse_solver(p, v);

@@ -52,8 +52,9 @@ static void describe(char *buf, size_t n, const gw_feature *ft, const gw_feature
         snprintf(buf, n, "losing: gives %.4g %s to the aquifer", fb->in, Q);
         break;
     case GW_STATE_MIXED:
-        snprintf(buf, n, "mixed: gains along some reaches, loses along others; net %s %.4g %s",
-                 fb->net < 0 ? "gain" : "loss", fabs(fb->net), Q);
+        snprintf(buf, n, "mixed: takes %.4g %s from the aquifer along some reaches and gives %.4g along "
+                 "others; overall it %s %.4g %s",
+                 fb->out, Q, fb->in, fb->net < 0 ? "gains" : "loses", fabs(fb->net), Q);
         break;
     default:
         snprintf(buf, n, "no exchange");
@@ -73,7 +74,7 @@ static void print_divides(FILE *f, const gw_results *r, const char *Q)
         double len = 0.0;
         for (int k = 0; k + 1 < d->npts; k++)
             len += hypot(d->xy[2 * k + 2] - d->xy[2 * k], d->xy[2 * k + 3] - d->xy[2 * k + 1]);
-        fprintf(f, "  divide between %s and %s: %.4g %s long, from (%.6g, %.6g) to (%.6g, %.6g)%s\n",
+        fprintf(f, "  divide between %s and %s: %.4g %s long, from (%.1f, %.1f) to (%.1f, %.1f)%s\n",
                 gw_results_feature_name(r, d->a), gw_results_feature_name(r, d->b), len, L, d->xy[0], d->xy[1],
                 d->xy[2 * d->npts - 2], d->xy[2 * d->npts - 1], d->closed ? " (closed loop)" : "");
     }
@@ -88,10 +89,10 @@ static void print_divides(FILE *f, const gw_results *r, const char *Q)
     const gw_catchments *c = &a->catchments;
     for (int k = 0; k < c->nfeatures; k++)
         if (c->discharge[k])
-            fprintf(f, "  catchment of %-28.28s %.6g %s2, recharge %.6g %s\n", gw_results_feature_name(r, k),
+            fprintf(f, "  catchment of %-28.28s %10.0f %s2, recharge %.4g %s\n", gw_results_feature_name(r, k),
                     c->area[k], L, c->recharge[k], Q);
     for (int i = 0; i < a->nstagnation; i++)
-        fprintf(f, "  stagnation point (%s) at (%.6g, %.6g), head %.6g %s\n",
+        fprintf(f, "  stagnation point (%s) at (%.1f, %.1f), head %.3f %s\n",
                 gw_stag_type_name(a->stagnation[i].type), a->stagnation[i].x, a->stagnation[i].y,
                 a->stagnation[i].head, L);
 }
