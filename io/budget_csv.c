@@ -53,7 +53,8 @@ int gw_budget_csv_write(const gw_results *r, FILE *f, gw_error *err)
         fprintf(f, ",%s,%d,%d,%.17g,%.17g,%.17g,%.17g\n", gw_feature_type_name(p->features[rc->feature].type),
                 col + 1, row + 1, gw_grid_xc(g, col), gw_grid_yc(g, row), rc->in, rc->out);
     }
-    if (fflush(f) != 0 || ferror(f)) return gw_fail(err, "could not write the budget table");
+    if (fflush(f) != 0 || ferror(f))
+        return gw_fail(err, "could not write the budget table: %s", errno ? strerror(errno) : "write error");
     return 0;
 }
 

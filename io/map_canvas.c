@@ -143,9 +143,27 @@ char *gw_fmt_num(char *buf, int len, double v, int sig)
     return buf;
 }
 
+/* libpng would print its messages on stderr; keep them for the error value
+ * instead (only the command prints). */
+static void png_error_keep(png_structp png, png_const_charp msg)
+{
+    char *buf = png_get_error_ptr(png);
+    int e = errno;   /* a failed fwrite leaves the reason here (disk full, ...) */
+    if (e) snprintf(buf, 128, "%s (%s)", msg ? msg : "", strerror(e));
+    else snprintf(buf, 128, "%s", msg ? msg : "");
+    png_longjmp(png, 1);
+}
+
+static void png_warning_drop(png_structp png, png_const_charp msg)
+{
+    (void)png;
+    (void)msg;
+}
+
 int gw_canvas_write_png(gw_map_canvas *c, const char *path, const gw_png_meta *meta,
                         gw_error *err)
 {
+    char png_msg[128] = "";
     cairo_surface_flush(c->surface);
     const unsigned char *data = cairo_image_surface_get_data(c->surface);
     int stride = cairo_image_surface_get_stride(c->surface);
@@ -158,7 +176,8 @@ int gw_canvas_write_png(gw_map_canvas *c, const char *path, const gw_png_meta *m
         free(row);
         return gw_fail(err, "cannot write %s: %s", path, strerror(errno));
     }
-    png_structp png = png_create_write_struct(PNG_LIBPNG_VER_STRING, NULL, NULL, NULL);
+    png_structp png = png_create_write_struct(PNG_LIBPNG_VER_STRING, png_msg, png_error_keep,
+                                              png_warning_drop);
     png_infop info = png ? png_create_info_struct(png) : NULL;
     if (!png || !info) {
         png_destroy_write_struct(&png, &info);
@@ -170,9 +189,10 @@ int gw_canvas_write_png(gw_map_canvas *c, const char *path, const gw_png_meta *m
         png_destroy_write_struct(&png, &info);
         fclose(f);
         free(row);
-        return gw_fail(err, "libpng failed writing %s", path);
+        return gw_fail(err, "cannot write %s: %s", path, png_msg[0] ? png_msg : "libpng failed");
     }
     png_init_io(png, f);
+    errno = 0;
     png_set_IHDR(png, info, (png_uint_32)w, (png_uint_32)h, 8, PNG_COLOR_TYPE_RGB,
                  PNG_INTERLACE_NONE, PNG_COMPRESSION_TYPE_DEFAULT, PNG_FILTER_TYPE_DEFAULT);
 

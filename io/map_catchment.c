@@ -65,6 +65,17 @@ static void draw_feature_lines(gw_map_page *pg, const gw_problem *p, const gw_ma
     }
 }
 
+/* A zone's outline: its main ring and every further ring (parts, holes);
+ * fills and clips use the even-odd rule so holes stay open. */
+static void zone_path(gw_map_page *pg, const gw_map_path *polygon, const gw_map_path *rings,
+                      int nrings)
+{
+    cairo_set_fill_rule(pg->cv.cr, CAIRO_FILL_RULE_EVEN_ODD);
+    gw_map_path_add(pg, polygon, 1);
+    for (int k = 0; rings && k < nrings; k++)
+        if (rings[k].n >= 3) gw_map_path_add(pg, &rings[k], 1);
+}
+
 /* Capture zone: heavy outline over a light hatch; travel-time zones dotted
  * inside it, each labelled with its time. */
 static void draw_capture(gw_map_page *pg, const gw_map_layers *l, int *have_tt)
@@ -76,7 +87,7 @@ static void draw_capture(gw_map_page *pg, const gw_map_layers *l, int *have_tt)
         if (cz->polygon.n >= 3) {
             cairo_save(cr);
             cairo_new_path(cr);
-            gw_map_path_add(pg, &cz->polygon, 1);
+            zone_path(pg, &cz->polygon, cz->rings, cz->nrings);
             cairo_clip_preserve(cr);
             cairo_set_source_rgba(cr, 1, 1, 1, 0.35);
             cairo_fill(cr);
@@ -95,7 +106,7 @@ static void draw_capture(gw_map_page *pg, const gw_map_layers *l, int *have_tt)
             static const double dots[2] = {1, 4};
             cairo_save(cr);
             cairo_new_path(cr);
-            gw_map_path_add(pg, &cz->zones[z].polygon, 1);
+            zone_path(pg, &cz->zones[z].polygon, cz->zones[z].rings, cz->zones[z].nrings);
             cairo_set_source_rgb(cr, 1, 1, 1);
             cairo_set_line_width(cr, 3.5 * fs);
             cairo_stroke_preserve(cr);
@@ -110,13 +121,38 @@ static void draw_capture(gw_map_page *pg, const gw_map_layers *l, int *have_tt)
         }
         if (cz->polygon.n >= 3) {
             cairo_new_path(cr);
-            gw_map_path_add(pg, &cz->polygon, 1);
+            zone_path(pg, &cz->polygon, cz->rings, cz->nrings);
             cairo_set_line_join(cr, CAIRO_LINE_JOIN_ROUND);
             cairo_set_source_rgb(cr, ZONE_RGB[0], ZONE_RGB[1], ZONE_RGB[2]);
             cairo_set_line_width(cr, 2.8 * fs);
             cairo_stroke(cr);
+            cairo_set_fill_rule(cr, CAIRO_FILL_RULE_WINDING);
         }
     }
+}
+
+/* Obstacle tag of travel-time zone z of capture zone i. */
+static int zone_tag(const gw_map_layers *l, int i, int z)
+{
+    int k = 0;
+    for (int j = 0; j < i; j++) k += l->capture[j].nzones + 1;
+    return GW_MAP_TAG_ZONE + k + 1 + z;
+}
+
+/* Keep labels off the capture and travel-time zone outlines. */
+static int reserve_zones(gw_map_page *pg, const gw_map_layers *l)
+{
+    for (int i = 0; i < l->ncapture; i++) {
+        const gw_map_capture *cz = &l->capture[i];
+        if (cz->polygon.n >= 3 &&
+            gw_map_reserve_path(pg, &cz->polygon, 1, 4 * pg->fs, zone_tag(l, i, 0) - 1) != 0)
+            return -1;
+        for (int z = 0; z < cz->nzones; z++)
+            if (cz->zones[z].polygon.n >= 3 &&
+                gw_map_reserve_path(pg, &cz->zones[z].polygon, 1, 4 * pg->fs, zone_tag(l, i, z)) != 0)
+                return -1;
+    }
+    return 0;
 }
 
 static int place_tt_labels(gw_map_page *pg, const gw_map_layers *l)
@@ -141,7 +177,9 @@ static int place_tt_labels(gw_map_page *pg, const gw_map_layers *l)
                 pxy[2 * k + 1] = gw_canvas_py(&pg->cv, tz->polygon.xy[2 * (k % n) + 1]);
             }
             gw_label_box b;
+            pg->labels.skip_tag = zone_tag(l, i, z);   /* it sits on its own line */
             int got = gw_labels_along_line(&pg->labels, pxy, n + 1, w + 4, h, 1e9, &b, 1);
+            pg->labels.skip_tag = -1;
             free(pxy);
             if (got < 0) return -1;
             if (got == 1 && gw_map_queue_text(pg, &b, txt, &st) != 0) return -1;
@@ -149,14 +187,23 @@ static int place_tt_labels(gw_map_page *pg, const gw_map_layers *l)
     return 0;
 }
 
-/* Catchment names at the centre of their cells, where free. */
+/* Feature names beside their lines.  A catchment whose feature has no
+ * drawn line (cells given without geometry) is named at the centre of its
+ * cells instead; the areas are in the legend. */
 static int place_names(gw_map_page *pg, const gw_problem *p, const gw_map_layers *l)
 {
     const gw_grid *g = &p->grid;
     gw_text_style st = gw_map_style(pg, 10.5, 1);
+    st.r = LINE_RGB[0]; st.g = LINE_RGB[1]; st.b = LINE_RGB[2];
     st.halo = 3 * pg->fs;
+    if (gw_map_place_feature_names(pg, p, l, &st, &st, 8 * pg->fs) != 0) return -1;
     for (int i = 0; i < l->ncatchments; i++) {
         int f = l->catchments[i].feature;
+        int drawn = 0;
+        for (int j = 0; j < l->ngeoms; j++)
+            if (l->geoms[j].feature == f) drawn = 1;
+        /* A well's catchment is its capture area: the well label names it. */
+        if (drawn || f < 0 || f >= p->nfeatures || p->features[f].type == GW_FEAT_WELL) continue;
         double sx = 0, sy = 0;
         long n = 0;
         for (int r = 0; r < g->ny; r++)
@@ -166,8 +213,7 @@ static int place_names(gw_map_page *pg, const gw_problem *p, const gw_map_layers
                     sy += gw_grid_yc(g, r);
                     n++;
                 }
-        /* A well's catchment is its capture area: the well label names it. */
-        if (n == 0 || f < 0 || f >= p->nfeatures || p->features[f].type == GW_FEAT_WELL) continue;
+        if (n == 0) continue;
         const char *name = p->features[f].name;
         double w, h;
         gw_canvas_text_size(&pg->cv, name, &st, &w, &h);
@@ -204,7 +250,10 @@ int gw_map_catchment_write(const gw_problem *p, const gw_map_layers *l, const ch
     int have_tt = 0;
 
     fill_catchments(&pg, p, l);
-    if (gw_map_place_wells(&pg, p) != 0 || place_tt_labels(&pg, l) != 0 || place_names(&pg, p, l) != 0)
+    /* Well and feature names may cross the zone outlines (they carry a
+     * halo); the zone labels then keep off everything. */
+    if (gw_map_reserve_features(&pg, p, l, 5 * fs, 5 * fs) != 0 || gw_map_place_wells(&pg, p) != 0 ||
+        place_names(&pg, p, l) != 0 || reserve_zones(&pg, l) != 0 || place_tt_labels(&pg, l) != 0)
         goto oom;
     draw_capture(&pg, l, &have_tt);
     draw_feature_lines(&pg, p, l);

@@ -23,6 +23,12 @@ gw_text_style gw_map_style(const gw_map_page *pg, double size, int bold)
 int gw_map_page_begin(gw_map_page *pg, const gw_grid *g, int width, const char *title,
                       const char *subtitle, gw_error *err)
 {
+    return gw_map_page_begin_legend(pg, g, width, title, subtitle, 0, err);
+}
+
+int gw_map_page_begin_legend(gw_map_page *pg, const gw_grid *g, int width, const char *title,
+                             const char *subtitle, double legend_px, gw_error *err)
+{
     memset(pg, 0, sizeof *pg);
     if (width <= 0) width = 1400;
     if (width < 600) width = 600;
@@ -34,6 +40,8 @@ int gw_map_page_begin(gw_map_page *pg, const gw_grid *g, int width, const char *
     double maph = mapw * eh / ew;
     if (maph > 1.25 * width) maph = 1.25 * width;
     if (maph < 690 * fs) maph = 690 * fs;   /* room for the legend; a wide grid is centred */
+    /* The legend runs from top + 4 to height - 125 (scale bar, arrow). */
+    if (maph < (legend_px + 4 + 125) * fs - bottom) maph = (legend_px + 4 + 125) * fs - bottom;
     int height = (int)ceil(top + maph + bottom);
     if (gw_canvas_init(&pg->cv, width, height, err) != 0) return -1;
     pg->g = g;

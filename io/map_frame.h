@@ -35,6 +35,10 @@ typedef struct {
  * band.  The frame shows the whole grid. */
 int gw_map_page_begin(gw_map_page *pg, const gw_grid *g, int width, const char *title,
                       const char *subtitle, gw_error *err);
+/* Same, with the page made tall enough for a legend `legend_px` high (at
+ * 1400 px width) above the scale bar and north arrow. */
+int gw_map_page_begin_legend(gw_map_page *pg, const gw_grid *g, int width, const char *title,
+                             const char *subtitle, double legend_px, gw_error *err);
 void gw_map_page_free(gw_map_page *pg);
 
 /* Queued labels, frame outline, coordinate ticks and labels, north arrow,

@@ -163,6 +163,21 @@ static double piece_q(stream_ctx *s, double xm, double ym, int *has)
     return (r->in - r->out) / s->ri->len[k];
 }
 
+/* Drawn width (px) of a stream or drain carrying q per length: area-like
+ * growth (sqrt) so that small exchanges stay visible next to large ones. */
+static double stream_width(double fs, double q, double qmax)
+{
+    return (2.0 + 5.5 * sqrt(fabs(q) / qmax)) * fs;
+}
+
+/* Largest of 1, 2, 5 x 10^k not above v (v > 0). */
+static double round_down(double v)
+{
+    double p = pow(10, floor(log10(v)));
+    double m = v / p;
+    return (m >= 5 ? 5 : m >= 2 ? 2 : 1) * p;
+}
+
 static void stream_piece(void *ctx, double xa, double ya, double xb, double yb)
 {
     stream_ctx *s = ctx;
@@ -182,9 +197,8 @@ static void stream_piece(void *ctx, double xa, double ya, double xb, double yb)
     gw_map_page *pg = s->pg;
     cairo_t *cr = pg->cv.cr;
     double fs = pg->fs;
-    double w = 2.0 * fs;
     int still = !has || !(s->qmax > 0) || fabs(q) < 1e-6 * s->qmax;
-    if (!still) w = (2.0 + 5.5 * sqrt(fabs(q) / s->qmax)) * fs;
+    double w = still ? 2.0 * fs : stream_width(fs, q, s->qmax);
     cairo_new_path(cr);
     cairo_move_to(cr, gw_canvas_px(&pg->cv, xa), gw_canvas_py(&pg->cv, ya));
     cairo_line_to(cr, gw_canvas_px(&pg->cv, xb), gw_canvas_py(&pg->cv, yb));
@@ -375,6 +389,27 @@ static void draw_colour_bar(gw_map_page *pg, const range *r, double interval, co
     pg->legend_y = by + bh + 36 * fs;
 }
 
+/* Height (px at 1400 wide) the legend below will take, counting the rows
+ * that may appear (stream rows whenever streams are drawn). */
+static double legend_height(const gw_problem *p, const gw_budget *b, const gw_map_layers *l)
+{
+    int rows = 2;   /* contour, inactive area */
+    int stream = 0, drain = 0, fixed = 0, pump = 0, inj = 0, stag[3] = {0, 0, 0};
+    for (int i = 0; i < l->ngeoms; i++) {
+        gw_feature_type t = p->features[l->geoms[i].feature].type;
+        stream |= t == GW_FEAT_STREAM;
+        drain |= t == GW_FEAT_DRAIN;
+    }
+    for (int k = 0; k < p->nfeatures; k++) fixed |= p->features[k].type == GW_FEAT_FIXED_HEAD;
+    for (int i = 0; i < p->nwells; i++) {
+        if (p->wells[i].rate < 0) inj = 1; else pump = 1;
+    }
+    for (int i = 0; i < l->nstag; i++) stag[l->stag[i].type] = 1;
+    if (stream) rows += b ? 6 : 1;   /* gaining, losing, still, width heading and two samples */
+    rows += drain + fixed + (l->ndivides > 0) + pump + inj + (l->nobs > 0 ? 2 : 0) + stag[0] + stag[1] + stag[2];
+    return 28 + 205 + 28 + 25.0 * rows + 10;   /* headings, colour bar, rows, margin */
+}
+
 int gw_map_head_write(const gw_problem *p, const double *head, const gw_budget *b,
                       const gw_map_layers *l, const char *path, gw_error *err)
 {
@@ -395,12 +430,16 @@ int gw_map_head_write(const gw_problem *p, const double *head, const gw_budget *
     const char *tu = l->time_unit ? l->time_unit : "day";
     double interval = l->contour_interval > 0 ? l->contour_interval
                                               : gw_contour_nice_interval(r.hmin, r.hmax, 12);
+    /* Too fine for the head range (results.c warns): the automatic one. */
+    if ((r.hmax - r.hmin) / interval > 400) interval = gw_contour_nice_interval(r.hmin, r.hmax, 12);
     char sub[256], ibuf[32];
     snprintf(sub, sizeof sub, "Steady-state hydraulic head (%s), contours every %s %s", lu,
              gw_fmt_num(ibuf, sizeof ibuf, interval, 6), lu);
 
     gw_map_page pg;
-    if (gw_map_page_begin(&pg, g, l->width, l->title ? l->title : "Head map", sub, err) != 0) return -1;
+    if (gw_map_page_begin_legend(&pg, g, l->width, l->title ? l->title : "Head map", sub,
+                                 legend_height(p, b, l), err) != 0)
+        return -1;
     int rc = -1;
     gw_contour_set cs = {0};
     px_line *pl = NULL;
@@ -533,8 +572,22 @@ int gw_map_head_write(const gw_problem *p, const double *head, const gw_budget *
              gw_fmt_num(mb, sizeof mb, interval * gw_contour_major_every(interval), 6), lu);
     legend_line(&pg, major_txt, (const double[3]){0.1, 0.1, 0.12}, 1.4 * fs, NULL, 0);
     if (sc.gaining_seen || (have_stream_geom && !b))
-        legend_line(&pg, "Gaining stream (width: rate)", GAIN_RGB, 5 * fs, NULL, 0);
-    if (sc.losing_seen) legend_line(&pg, "Losing stream (width: rate)", LOSE_RGB, 4.5 * fs, LOSE_CASE, 0);
+        legend_line(&pg, "Gaining stream (aquifer to stream)", GAIN_RGB, 5 * fs, NULL, 0);
+    if (sc.losing_seen) legend_line(&pg, "Losing stream (stream to aquifer)", LOSE_RGB, 4.5 * fs, LOSE_CASE, 0);
+    if ((sc.gaining_seen || sc.losing_seen) && sc.qmax > 0) {
+        /* Width scale: two sample widths at round rates, so a reader can
+         * read the exchange off the map. */
+        double sx, sy;
+        char txt[128], nb[32];
+        gw_map_legend_row(&pg, "Line width shows the exchange:", &sx, &sy);
+        double v1 = round_down(sc.qmax), v2 = round_down(0.2 * sc.qmax);
+        double vs[2] = {v1, v2};
+        for (int i = 0; i < 2; i++) {
+            snprintf(txt, sizeof txt, "%s %s\u00b3/%s per %s of stream", gw_fmt_num(nb, sizeof nb, vs[i], 3),
+                     lu, tu, lu);
+            legend_line(&pg, txt, (const double[3]){0.3, 0.3, 0.33}, stream_width(fs, vs[i], sc.qmax), NULL, 0);
+        }
+    }
     if (sc.still_seen) legend_line(&pg, "Stream, no exchange", (const double[3]){0.45, 0.45, 0.48}, 2 * fs, NULL, 0);
     if (have_drain) legend_line(&pg, "Drain", DRAIN_RGB, 3.5 * fs, NULL, 0);
     if (have_fixed) {

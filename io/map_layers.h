@@ -45,12 +45,18 @@ typedef struct {
     double time;              /* T */
     double area;              /* L^2 */
     gw_map_path polygon;
+    /* Further rings (separate parts, holes): drawn with `polygon` under the
+     * even-odd rule, so holes stay open; may be NULL. */
+    const gw_map_path *rings;
+    int nrings;
 } gw_map_tt_zone;
 
 typedef struct {
     const char *well;
     double area;
     gw_map_path polygon;
+    const gw_map_path *rings;   /* as in gw_map_tt_zone */
+    int nrings;
     const gw_map_tt_zone *zones;
     int nzones;
 } gw_map_capture;

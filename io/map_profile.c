@@ -145,34 +145,77 @@ int gw_map_profile_write(const gw_profile_chart *pc, const char *path, gw_error 
         snprintf(buf, sizeof buf, "%.36s", cu->label ? cu->label : "head");
         gw_canvas_text(&cv, px1 + 68 * fs, ly, buf, &lg);
     }
-    /* Divide crossings: a triangle on the axis and a thin vertical line. */
+    /* Divide crossings.  For all curves (-1): a triangle on the axis and a
+     * thin vertical line.  For one curve of several (a sweep): a ringed dot
+     * on that curve in its colour and a small triangle of the same colour
+     * on the axis, so each run's divide can be told from the others. */
+    int on_curve = 0;
     for (int m = 0; m < pc->nmarks; m++) {
         double x = PX(pc->marks[m].dist);
         if (x < px0 || x > px1) continue;
-        cairo_save(cr);
-        static const double dd[2] = {4, 4};
-        cairo_set_dash(cr, dd, 2, 0);
-        cairo_move_to(cr, x, py0);
-        cairo_line_to(cr, x, py1);
-        cairo_set_source_rgba(cr, 0.1, 0.1, 0.12, 0.7);
-        cairo_set_line_width(cr, 1.2 * fs);
-        cairo_stroke(cr);
-        cairo_restore(cr);
+        int c = pc->marks[m].curve;
+        double rgb[3] = {0.1, 0.1, 0.12};
+        if (c >= 0 && c < pc->ncurves) {
+            gw_ramp_rgb(pc->ncurves > 1 ? 0.6 * c / (pc->ncurves - 1) : 0.1, rgb);
+            const gw_profile_curve *cu = &pc->curves[c];
+            double h = NAN;   /* head on the curve at the crossing */
+            for (int i = 0; i + 1 < cu->n; i++)
+                if (cu->dist[i] <= pc->marks[m].dist && pc->marks[m].dist <= cu->dist[i + 1]) {
+                    double L = cu->dist[i + 1] - cu->dist[i];
+                    double f = L > 0 ? (pc->marks[m].dist - cu->dist[i]) / L : 0;
+                    h = cu->head[i] + f * (cu->head[i + 1] - cu->head[i]);
+                    break;
+                }
+            if (isfinite(h)) {
+                cairo_new_path(cr);
+                cairo_arc(cr, x, PY(h), 5.5 * fs, 0, 2 * 3.14159265358979323846);
+                cairo_set_source_rgb(cr, 1, 1, 1);
+                cairo_fill_preserve(cr);
+                cairo_set_source_rgb(cr, rgb[0], rgb[1], rgb[2]);
+                cairo_set_line_width(cr, 2.5 * fs);
+                cairo_stroke(cr);
+                on_curve = 1;
+            }
+        } else {
+            cairo_save(cr);
+            static const double dd[2] = {4, 4};
+            cairo_set_dash(cr, dd, 2, 0);
+            cairo_move_to(cr, x, py0);
+            cairo_line_to(cr, x, py1);
+            cairo_set_source_rgba(cr, 0.1, 0.1, 0.12, 0.7);
+            cairo_set_line_width(cr, 1.2 * fs);
+            cairo_stroke(cr);
+            cairo_restore(cr);
+        }
+        cairo_new_path(cr);
         cairo_move_to(cr, x, py0);
         cairo_line_to(cr, x - 6 * fs, py0 - 10 * fs);
         cairo_line_to(cr, x + 6 * fs, py0 - 10 * fs);
         cairo_close_path(cr);
-        cairo_set_source_rgb(cr, 0.1, 0.1, 0.12);
+        cairo_set_source_rgb(cr, rgb[0], rgb[1], rgb[2]);
         cairo_fill(cr);
     }
     if (pc->nmarks > 0) {
         double ly = py0 + 10 * fs + 26 * fs * pc->ncurves + 10 * fs;
+        cairo_new_path(cr);
         cairo_move_to(cr, px1 + 42 * fs, ly + 6 * fs);
         cairo_line_to(cr, px1 + 36 * fs, ly - 4 * fs);
         cairo_line_to(cr, px1 + 48 * fs, ly - 4 * fs);
         cairo_close_path(cr);
+        cairo_set_source_rgb(cr, 0.1, 0.1, 0.12);
         cairo_fill(cr);
         gw_canvas_text(&cv, px1 + 68 * fs, ly, "Divide crossing", &lg);
+        if (on_curve) {
+            ly += 26 * fs;
+            cairo_new_path(cr);
+            cairo_arc(cr, px1 + 42 * fs, ly, 5.5 * fs, 0, 2 * 3.14159265358979323846);
+            cairo_set_source_rgb(cr, 1, 1, 1);
+            cairo_fill_preserve(cr);
+            cairo_set_source_rgb(cr, 0.1, 0.1, 0.12);
+            cairo_set_line_width(cr, 2.5 * fs);
+            cairo_stroke(cr);
+            gw_canvas_text(&cv, px1 + 68 * fs, ly, "Divide on that run's curve", &lg);
+        }
     }
 #undef PX
 #undef PY

@@ -10,6 +10,7 @@
 #include "map_head.h"
 #include "map_layers.h"
 #include "map_profile.h"
+#include "map_section.h"
 #include "report_html.h"
 
 /* Everything gw_maps_write allocates, freed in one place. */
@@ -21,6 +22,7 @@ typedef struct {
     gw_map_capture *cap;
     gw_map_tt_zone *tt;
     double *ringxy;          /* all ring vertices, packed */
+    gw_map_path *rings;      /* further rings of the zones, packed */
 } layers_buf;
 
 static void buf_free(layers_buf *b)
@@ -32,14 +34,11 @@ static void buf_free(layers_buf *b)
     free(b->cap);
     free(b->tt);
     free(b->ringxy);
+    free(b->rings);
 }
 
-static int pack_ring(const gw_capzone *z, double **cursor, gw_map_path *out)
+static void pack_one(const gw_capring *rg, double **cursor, gw_map_path *out)
 {
-    out->xy = NULL;
-    out->n = 0;
-    if (z->outer < 0 || z->outer >= z->nring) return 0;
-    const gw_capring *rg = &z->ring[z->outer];
     double *p = *cursor;
     for (int i = 0; i < rg->n; i++) {
         p[2 * i] = rg->x[i];
@@ -48,6 +47,25 @@ static int pack_ring(const gw_capzone *z, double **cursor, gw_map_path *out)
     out->xy = p;
     out->n = rg->n;
     *cursor = p + 2 * rg->n;
+}
+
+/* The largest outer ring into *out, every other ring (parts, holes) into
+ * *rings (advanced past them). */
+static int pack_ring(const gw_capzone *z, double **cursor, gw_map_path *out,
+                     gw_map_path **rings, const gw_map_path **first, int *nrings)
+{
+    out->xy = NULL;
+    out->n = 0;
+    *first = *rings;
+    *nrings = 0;
+    if (z->outer < 0 || z->outer >= z->nring) return 0;
+    pack_one(&z->ring[z->outer], cursor, out);
+    for (int i = 0; i < z->nring; i++)
+        if (i != z->outer) {
+            pack_one(&z->ring[i], cursor, *rings);
+            ++*rings;
+            ++*nrings;
+        }
     return 0;
 }
 
@@ -89,32 +107,36 @@ static int build_layers(const gw_results *r, layers_buf *b, gw_error *err)
     }
     if (r->capture && r->capture->nzone > 0) {
         const gw_capture *cp = r->capture;
-        long nv = 0, nz = 0;
+        long nv = 0, nz = 0, nr = 0;
         for (int i = 0; i < cp->nzone; i++) {
             const gw_capture_zone *z = &cp->zone[i];
-            if (z->capture.outer >= 0) nv += z->capture.ring[z->capture.outer].n;
-            for (int t = 0; t < z->nttz; t++) {
-                if (z->ttz[t].outer >= 0) nv += z->ttz[t].ring[z->ttz[t].outer].n;
-                nz++;
+            for (int t = -1; t < z->nttz; t++) {
+                const gw_capzone *cz = t < 0 ? &z->capture : &z->ttz[t];
+                for (int k = 0; cz->outer >= 0 && k < cz->nring; k++) nv += cz->ring[k].n;
+                nr += cz->nring;
+                if (t >= 0) nz++;
             }
         }
         b->cap = calloc((size_t)cp->nzone, sizeof *b->cap);
         b->tt = calloc((size_t)(nz ? nz : 1), sizeof *b->tt);
         b->ringxy = malloc((size_t)(nv ? nv : 1) * 2 * sizeof(double));
-        if (!b->cap || !b->tt || !b->ringxy) return gw_fail(err, "out of memory preparing the maps");
+        b->rings = calloc((size_t)(nr ? nr : 1), sizeof *b->rings);
+        if (!b->cap || !b->tt || !b->ringxy || !b->rings)
+            return gw_fail(err, "out of memory preparing the maps");
         double *cur = b->ringxy;
+        gw_map_path *rcur = b->rings;
         gw_map_tt_zone *tz = b->tt;
         for (int i = 0; i < cp->nzone; i++) {
             const gw_capture_zone *z = &cp->zone[i];
             gw_map_capture *mc = &b->cap[i];
             mc->well = z->feature >= 0 && z->feature < p->nfeatures ? p->features[z->feature].name : "well";
             mc->area = z->capture.area;
-            pack_ring(&z->capture, &cur, &mc->polygon);
+            pack_ring(&z->capture, &cur, &mc->polygon, &rcur, &mc->rings, &mc->nrings);
             mc->zones = tz;
             for (int t = 0; t < z->nttz; t++) {
                 tz->time = z->ttz[t].time;
                 tz->area = z->ttz[t].area;
-                pack_ring(&z->ttz[t], &cur, &tz->polygon);
+                pack_ring(&z->ttz[t], &cur, &tz->polygon, &rcur, &tz->rings, &tz->nrings);
                 tz++;
             }
             mc->nzones = z->nttz;
@@ -191,25 +213,41 @@ int gw_maps_write(const gw_results *r, gw_outdir *o, gw_error *err)
     const char *path;
     if (build_layers(r, &b, err) != 0) goto done;
 
-    if (!(path = gw_outdir_path(o, "head.png", err)) ||
-        gw_map_head_write(r->problem, r->solution.head, r->have_budget ? &r->budget : NULL, &b.l, path, err) != 0)
-        goto done;
-    img[nimg++] = (gw_report_image){path, "Head map: steady-state heads, contours, streams by gaining "
-                                          "and losing reaches, wells, observation residuals, divides."};
-    if (b.l.catchment_of) {
+    unsigned set = r->model->map_set ? r->model->map_set : GW_MAP_ALL;   /* output.maps */
+    if (r->problem->type == GW_SECTION) {
+        /* A section's y is elevation: section.png replaces the plan-view head map. */
+        const gw_model *m = r->model;
+        gw_section_map sm = {m->title, m->length_unit, m->time_unit, m->map_width, m->contour_interval, 0};
+        if ((set & GW_MAP_HEAD) && r->section) {
+            if (!(path = gw_outdir_path(o, "section.png", err)) ||
+                gw_map_section_write(&sm, r->problem, &r->solution, r->section, path, err) != 0)
+                goto done;
+            img[nimg++] = (gw_report_image){path, "Cross-section: flow systems (Toth 1963) shaded, "
+                                                  "equipotentials, flow lines, dividing streamlines, water "
+                                                  "table with recharge and discharge areas, hinge points."};
+        }
+    } else if (set & GW_MAP_HEAD) {
+        if (!(path = gw_outdir_path(o, "head.png", err)) ||
+            gw_map_head_write(r->problem, r->solution.head, r->have_budget ? &r->budget : NULL, &b.l, path,
+                              err) != 0)
+            goto done;
+        img[nimg++] = (gw_report_image){path, "Head map: steady-state heads, contours, streams by gaining "
+                                              "and losing reaches, wells, observation residuals, divides."};
+    }
+    if ((set & GW_MAP_CATCHMENTS) && b.l.catchment_of) {
         if (!(path = gw_outdir_path(o, "catchments.png", err)) ||
             gw_map_catchment_write(r->problem, &b.l, path, err) != 0)
             goto done;
         img[nimg++] = (gw_report_image){path, "Catchment map: where the water of each discharge feature "
                                               "comes from, divides, capture and travel-time zones."};
     }
-    if (r->have_budget) {
+    if ((set & GW_MAP_BUDGET) && r->have_budget) {
         if (!(path = gw_outdir_path(o, "budget.png", err)) ||
             gw_map_budget_write(r->problem, &r->budget, &b.l, path, err) != 0)
             goto done;
         img[nimg++] = (gw_report_image){path, "Water budget per feature, with the global balance."};
     }
-    if (write_profiles(r, &b.l, o, img, &nimg, names, caps, err) != 0) goto done;
+    if ((set & GW_MAP_PROFILES) && write_profiles(r, &b.l, o, img, &nimg, names, caps, err) != 0) goto done;
     if (!(path = gw_outdir_path(o, "report.html", err)) ||
         gw_report_html_write(r, &b.l, img, nimg, path, err) != 0)
         goto done;

@@ -165,13 +165,23 @@ typedef struct {
     int capture;                /* 1 when analysis.capture given or wells exist */
 
     /* output: */
-    int maps;                   /* default 1 */
+    int maps;                   /* default 1; 0: no maps and no report.html */
+    unsigned map_set;           /* GW_MAP_* bits drawn when maps is on; default GW_MAP_ALL */
     double contour_interval;    /* 0: automatic */
     int map_width;              /* pixels, default 1400 */
 
     /* solver: */
     double head_tol, resid_tol; int max_iter;
 } gw_model;
+
+/* output.maps as a list names the maps to draw (true: all of them). */
+enum {
+    GW_MAP_HEAD = 1,          /* head.png */
+    GW_MAP_CATCHMENTS = 2,    /* catchments.png */
+    GW_MAP_BUDGET = 4,        /* budget.png */
+    GW_MAP_PROFILES = 8,      /* profile_N.png, and sweep_profile_*.png in sweeps */
+    GW_MAP_ALL = 15
+};
 
 /* Parse and validate a model file.  On any problem returns NULL with a
  * message "FILE:LINE:COL: what is wrong (key or feature name)"; several

@@ -393,6 +393,24 @@ static int build_cells(const gw_model *m, gw_problem *p, gw_error *err)
     return 0;
 }
 
+/* In a vertical section, recharge crosses the water table: it enters the
+ * uppermost active cell of each column only, as R x dx per unit width
+ * (stored as a rate over the cell's dx x dy so budgets need no special case). */
+static void section_recharge_on_top(gw_problem *p)
+{
+    const gw_grid *g = &p->grid;
+    for (int c = 0; c < g->nx; c++) {
+        int top = 1;
+        for (int r = 0; r < g->ny; r++) {
+            size_t k = (size_t)r * g->nx + c;
+            if (!p->active[k])
+                continue;
+            p->recharge[k] = top ? p->recharge[k] / g->dy : 0.0;
+            top = 0;
+        }
+    }
+}
+
 gw_problem *gw_model_build(const gw_model *m, gw_error *err)
 {
     gw_problem *p = gw_problem_new(&m->grid, m->aquifer_type, err);
@@ -419,6 +437,8 @@ gw_problem *gw_model_build(const gw_model *m, gw_error *err)
         if (add_leakage(m, p, &m->leakage[i], err) < 0) goto fail;
     for (int i = 0; i < m->nseepage; i++)
         if (add_seepage(m, p, &m->seepage[i], err) < 0) goto fail;
+    if (m->aquifer_type == GW_SECTION)
+        section_recharge_on_top(p);
     if (gw_problem_check_bounded(p, err) < 0) {
         gw_fail_prefix(err, "%s: ", m->path ? m->path : "(model)");
         goto fail;

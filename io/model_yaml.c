@@ -13,9 +13,15 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #define GW_MAX_CELLS 100000000L   /* cell indices are int; memory ~100 B/cell */
 #define GW_MAX_FILE_BYTES (256L * 1024 * 1024)
+/* Peak memory of a whole run per grid cell: measured 720-820 bytes a cell
+ * (grid arrays, matrix, CHOLMOD factor, maps) on square confined grids of
+ * 0.25 to 2.25 million cells; rounded up for the fill-in that grows with
+ * the grid. */
+#define GW_BYTES_PER_CELL 1024.0
 
 typedef struct {
     gw_msgs *msgs;
@@ -230,6 +236,23 @@ static void parse_units(P *p, const gw_ynode *n)
     if (t) gw_yget_string(p->msgs, t, "units.time", &p->m->time_unit);
 }
 
+/* A grid whose run would need more memory than the machine has is rejected
+ * before anything is allocated: trying would only end in swapping or an
+ * out-of-memory kill. */
+static void check_grid_memory(P *p, const gw_ynode *at, const char *what, int nx, int ny)
+{
+    double cells = (double)nx * (double)ny;
+    long pages = sysconf(_SC_PHYS_PAGES), page = sysconf(_SC_PAGESIZE);
+    if (pages <= 0 || page <= 0) return;
+    double have = (double)pages * (double)page, need = cells * GW_BYTES_PER_CELL;
+    if (need <= have) return;
+    gw_msgs_add(p->msgs, at->line, at->col,
+                "%s: %d columns x %d rows (%.0f cells) would need about %.1f GiB of memory "
+                "(about %.0f bytes a cell) and this machine has %.1f GiB; use larger cells "
+                "or a smaller area", what, nx, ny, cells, need / 1073741824.0, GW_BYTES_PER_CELL,
+                have / 1073741824.0);
+}
+
 static void parse_grid(P *p, const gw_ynode *n)
 {
     static const char *const keys[] = { "origin", "cell_size", "columns", "rows", "crs", "like", NULL };
@@ -254,6 +277,8 @@ static void parse_grid(P *p, const gw_ynode *n)
         } else if ((long)g->nx * (long)g->ny > GW_MAX_CELLS) {
             gw_msgs_add(p->msgs, like->line, like->col, "grid.like: %d columns x %d rows is more than %ld cells",
                         g->nx, g->ny, GW_MAX_CELLS);
+        } else {
+            check_grid_memory(p, like, "grid.like", g->nx, g->ny);
         }
         free(file);
         const gw_ynode *c2 = gw_ymap_get(n, "crs");
@@ -285,6 +310,8 @@ static void parse_grid(P *p, const gw_ynode *n)
     if (okc && okr && (long)g->nx * (long)g->ny > GW_MAX_CELLS)
         gw_msgs_add(p->msgs, c->line, c->col, "grid: %d columns x %d rows is more than %ld cells",
                     g->nx, g->ny, GW_MAX_CELLS);
+    else if (okc && okr)
+        check_grid_memory(p, c, "grid", g->nx, g->ny);
     const gw_ynode *crs = gw_ymap_get(n, "crs");
     if (crs) gw_yget_string(p->msgs, crs, "grid.crs", &p->m->crs);
 }
@@ -660,6 +687,36 @@ static void parse_analysis(P *p, const gw_ynode *n)
     }
 }
 
+/* output.maps: true, false, or a list of map names. */
+static void parse_map_list(P *p, const gw_ynode *v)
+{
+    static const struct { const char *name; unsigned bit; } kinds[] = {
+        {"head", GW_MAP_HEAD}, {"catchments", GW_MAP_CATCHMENTS}, {"budget", GW_MAP_BUDGET},
+        {"profiles", GW_MAP_PROFILES}};
+    gw_model *m = p->m;
+    if (v->kind != GW_YSEQ) {
+        if (gw_yget_bool(p->msgs, v, "output.maps", &m->maps) == 0) m->map_set = GW_MAP_ALL;
+        return;
+    }
+    unsigned set = 0;
+    for (int i = 0; i < v->n; i++) {
+        const gw_ynode *it = v->kids[i];
+        unsigned bit = 0;
+        if (it->kind == GW_YSCALAR)
+            for (size_t k = 0; k < sizeof kinds / sizeof kinds[0]; k++)
+                if (!strcmp(it->text, kinds[k].name)) bit = kinds[k].bit;
+        if (!bit) {
+            gw_msgs_add(p->msgs, it->line, it->col,
+                        "output.maps: unknown map '%.40s' (expected head, catchments, budget or profiles)",
+                        it->kind == GW_YSCALAR ? it->text : "a list or mapping");
+            continue;
+        }
+        set |= bit;
+    }
+    m->map_set = set;
+    m->maps = set != 0;   /* an empty list draws nothing, like false */
+}
+
 static void parse_output(P *p, const gw_ynode *n)
 {
     static const char *const keys[] = { "maps", "contour_interval", "map_width", NULL };
@@ -667,7 +724,7 @@ static void parse_output(P *p, const gw_ynode *n)
     if (!gw_yis_map(p->msgs, n, "output")) return;
     gw_ycheck_keys(p->msgs, n, "output", keys);
     const gw_ynode *v;
-    if ((v = gw_ymap_get(n, "maps"))) gw_yget_bool(p->msgs, v, "output.maps", &m->maps);
+    if ((v = gw_ymap_get(n, "maps"))) parse_map_list(p, v);
     if ((v = gw_ymap_get(n, "contour_interval")))
         get_checked(p, v, "output.contour_interval", C_POSITIVE, &m->contour_interval);
     if ((v = gw_ymap_get(n, "map_width"))) gw_yget_int(p->msgs, v, "output.map_width", 100, 20000, &m->map_width);
@@ -774,6 +831,7 @@ static void set_defaults(gw_model *m)
     m->recharge = (gw_property){ .kind = GW_PROP_VALUE, .value = 0.0, .band = 1, .scale = 1.0 };
     m->divides = 1;
     m->maps = 1;
+    m->map_set = GW_MAP_ALL;
     m->contour_interval = 0.0;
     m->map_width = 1400;
     /* The solver's own defaults (solver/solve.h). */

@@ -12,6 +12,7 @@ struct gw_outdir {
     char *dir;          /* output directory */
     char *stage;        /* staging folder inside it */
     int created_dir;    /* this run created `dir` */
+    char *first_made;   /* shallowest folder this run created (dir or a parent) */
     int done;           /* committed or aborted */
     char **paths; int npaths;   /* strings handed out, freed at the end */
 };
@@ -24,11 +25,14 @@ static char *join(const char *a, const char *b)
     return s;
 }
 
-/* mkdir -p; *created is set when the last component was made here. */
-static int make_dirs(const char *dir, int *created, gw_error *err)
+/* mkdir -p; *created is set when the last component was made here, and
+ * *first names the shallowest folder made here (so abort can remove the
+ * parents it created too). */
+static int make_dirs(const char *dir, int *created, char **first, gw_error *err)
 {
     struct stat st;
     *created = 0;
+    *first = NULL;
     if (stat(dir, &st) == 0) {
         if (!S_ISDIR(st.st_mode)) return gw_fail(err, "%s: exists and is not a directory", dir);
         return 0;
@@ -38,7 +42,9 @@ static int make_dirs(const char *dir, int *created, gw_error *err)
     for (char *p = tmp + 1; *p; p++) {
         if (*p != '/') continue;
         *p = 0;
-        if (mkdir(tmp, 0777) != 0 && errno != EEXIST) {
+        if (mkdir(tmp, 0777) == 0) {
+            if (!*first) *first = strdup(tmp);
+        } else if (errno != EEXIST) {
             int e = errno;
             gw_fail(err, "cannot create directory %s: %s", tmp, strerror(e));
             free(tmp);
@@ -48,11 +54,28 @@ static int make_dirs(const char *dir, int *created, gw_error *err)
     }
     free(tmp);
     if (mkdir(dir, 0777) != 0) {
-        if (errno == EEXIST) return 0;
+        if (errno == EEXIST && stat(dir, &st) == 0 && S_ISDIR(st.st_mode)) return 0;
         return gw_fail(err, "cannot create directory %s: %s", dir, strerror(errno));
     }
     *created = 1;
+    if (!*first) *first = strdup(dir);
     return 0;
+}
+
+/* Remove the folders make_dirs created, deepest first (only when empty). */
+static void remove_made_dirs(gw_outdir *o)
+{
+    if (!o->first_made) return;
+    char *p = strdup(o->dir);
+    size_t n = strlen(o->first_made);
+    while (p && strlen(p) >= n) {
+        if (rmdir(p) != 0) break;
+        if (!strcmp(p, o->first_made)) break;
+        char *slash = strrchr(p, '/');
+        if (!slash || slash == p) break;
+        *slash = 0;
+    }
+    free(p);
 }
 
 gw_outdir *gw_outdir_open(const char *dir, gw_error *err)
@@ -64,7 +87,13 @@ gw_outdir *gw_outdir_open(const char *dir, gw_error *err)
     if (!o->dir) { gw_fail(err, "out of memory"); free(o); return NULL; }
     size_t n = strlen(o->dir);
     while (n > 1 && o->dir[n - 1] == '/') o->dir[--n] = 0;
-    if (make_dirs(o->dir, &o->created_dir, err) != 0) { free(o->dir); free(o); return NULL; }
+    if (make_dirs(o->dir, &o->created_dir, &o->first_made, err) != 0) {
+        remove_made_dirs(o);
+        free(o->first_made);
+        free(o->dir);
+        free(o);
+        return NULL;
+    }
     char name[64];
     snprintf(name, sizeof name, ".gwdivide-staging-%ld", (long)getpid());
     o->stage = join(o->dir, name);
@@ -80,6 +109,25 @@ gw_outdir *gw_outdir_open(const char *dir, gw_error *err)
 }
 
 const char *gw_outdir_dir(const gw_outdir *o) { return o->dir; }
+
+void gw_outdir_unstage(const gw_outdir *o, gw_error *err)
+{
+    if (!o || !o->stage || !err) return;
+    size_t ls = strlen(o->stage), ld = strlen(o->dir);
+    char out[sizeof err->msg];
+    size_t w = 0;
+    for (const char *m = err->msg; *m && w + 1 < sizeof out;) {
+        if (!strncmp(m, o->stage, ls) && w + ld + 1 < sizeof out) {
+            memcpy(out + w, o->dir, ld);
+            w += ld;
+            m += ls;
+        } else {
+            out[w++] = *m++;
+        }
+    }
+    out[w] = 0;
+    memcpy(err->msg, out, w + 1);
+}
 
 static const char *remember(gw_outdir *o, char *s, gw_error *err)
 {
@@ -126,6 +174,35 @@ static void clear_stage(gw_outdir *o)
     rmdir(o->stage);
 }
 
+#define GW_PREVIOUS ".gwdivide-previous-"
+
+static int cmp_names(const void *a, const void *b)
+{
+    return strcmp(*(char *const *)a, *(char *const *)b);
+}
+
+/* Put back what the first `moved` renames of commit replaced. */
+static void roll_back(gw_outdir *o, char **names, int moved)
+{
+    for (int i = moved - 1; i >= 0; i--) {
+        char *to = join(o->dir, names[i]), *prev = NULL;
+        size_t n = strlen(GW_PREVIOUS) + strlen(names[i]) + 1;
+        char *pname = malloc(n);
+        if (pname) { snprintf(pname, n, "%s%s", GW_PREVIOUS, names[i]); prev = join(o->stage, pname); }
+        if (to) {
+            struct stat st;
+            if (prev && lstat(prev, &st) == 0) rename(prev, to);
+            else remove(to);
+        }
+        free(to);
+        free(prev);
+        free(pname);
+    }
+}
+
+/* All or nothing: every target is checked before anything moves; an older
+ * file of the same name is first set aside in the staging folder, so a
+ * rename that fails half-way is undone and the folder is left as it was. */
 int gw_outdir_commit(gw_outdir *o, gw_error *err)
 {
     if (o->done) return gw_fail(err, "output directory already closed");
@@ -135,20 +212,57 @@ int gw_outdir_commit(gw_outdir *o, gw_error *err)
         gw_outdir_abort(o);
         return gw_fail(err, "cannot read %s: %s", o->stage, strerror(e));
     }
+    char **names = NULL;
+    int n = 0, cap = 0, rc = 0, moved = 0;
     struct dirent *e;
-    int rc = 0;
-    while ((e = readdir(d)) != NULL) {
+    while (rc == 0 && (e = readdir(d)) != NULL) {
         if (!strcmp(e->d_name, ".") || !strcmp(e->d_name, "..")) continue;
-        char *from = join(o->stage, e->d_name), *to = join(o->dir, e->d_name);
-        if (!from || !to) rc = gw_fail(err, "out of memory");
-        else if (rename(from, to) != 0)
-            rc = gw_fail(err, "cannot move %s into place: %s", to, strerror(errno));
-        free(from);
-        free(to);
-        if (rc) break;
+        if (n == cap) {
+            cap = cap ? 2 * cap : 16;
+            char **nn = realloc(names, (size_t)cap * sizeof *nn);
+            if (!nn) { rc = gw_fail(err, "out of memory"); break; }
+            names = nn;
+        }
+        if (!(names[n] = strdup(e->d_name))) rc = gw_fail(err, "out of memory");
+        else n++;
     }
     closedir(d);
+    if (n > 1) qsort(names, (size_t)n, sizeof *names, cmp_names);
+    for (int i = 0; i < n && rc == 0; i++) {   /* nothing in the way? */
+        char *to = join(o->dir, names[i]);
+        struct stat st;
+        if (!to) rc = gw_fail(err, "out of memory");
+        else if (lstat(to, &st) == 0 && !S_ISREG(st.st_mode))
+            rc = gw_fail(err, "cannot write %s: something other than a file is in the way", to);
+        free(to);
+    }
+    for (int i = 0; i < n && rc == 0; i++) {
+        size_t pn = strlen(GW_PREVIOUS) + strlen(names[i]) + 1;
+        char *pname = malloc(pn);
+        if (pname) snprintf(pname, pn, "%s%s", GW_PREVIOUS, names[i]);
+        char *from = join(o->stage, names[i]), *to = join(o->dir, names[i]);
+        char *prev = pname ? join(o->stage, pname) : NULL;
+        struct stat st;
+        if (!from || !to || !prev) rc = gw_fail(err, "out of memory");
+        /* A hard link keeps the older file in place while the new one
+         * replaces it atomically; rename is the fallback where links fail. */
+        else if (lstat(to, &st) == 0 && link(to, prev) != 0 && rename(to, prev) != 0)
+            rc = gw_fail(err, "cannot replace %s: %s", to, strerror(errno));
+        else if (rename(from, to) != 0) {
+            rc = gw_fail(err, "cannot move %s into place: %s", to, strerror(errno));
+            if (lstat(to, &st) != 0 && lstat(prev, &st) == 0) rename(prev, to);
+        } else
+            moved++;
+        free(from);
+        free(to);
+        free(prev);
+        free(pname);
+    }
+    if (rc) roll_back(o, names, moved);
+    for (int i = 0; i < n; i++) free(names[i]);
+    free(names);
     clear_stage(o);
+    if (rc && o->created_dir) remove_made_dirs(o);
     o->done = 1;
     return rc;
 }
@@ -157,7 +271,7 @@ void gw_outdir_abort(gw_outdir *o)
 {
     if (!o) return;
     clear_stage(o);
-    if (o->created_dir) rmdir(o->dir);   /* only succeeds when empty */
+    remove_made_dirs(o);   /* only succeeds when empty */
     o->done = 1;
 }
 
@@ -168,6 +282,7 @@ void gw_outdir_free(gw_outdir *o)
     for (int i = 0; i < o->npaths; i++) free(o->paths[i]);
     free(o->paths);
     free(o->stage);
+    free(o->first_made);
     free(o->dir);
     free(o);
 }

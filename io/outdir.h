@@ -40,4 +40,8 @@ void gw_outdir_free(gw_outdir *o);
 
 const char *gw_outdir_dir(const gw_outdir *o);
 
+/* Rewrite staged paths in an error message as the final paths the user
+ * asked for (".../.gwdivide-staging-PID/x.png" -> ".../x.png"). */
+void gw_outdir_unstage(const gw_outdir *o, gw_error *err);
+
 #endif

@@ -60,7 +60,7 @@ static const char *CSS =
     "h1{font-size:1.6rem;margin:.2rem 0 .2rem}h2{font-size:1.2rem;margin:2rem 0 .6rem;"
     "border-bottom:2px solid #2b4a6f;padding-bottom:.2rem}"
     ".sub{color:#555;margin:0 0 1rem}"
-    "table{border-collapse:collapse;margin:.4rem 0 1rem;font-size:.92rem}"
+    "table{border-collapse:collapse;margin:.4rem 0 1rem;font-size:.92rem;display:block;max-width:100%;overflow-x:auto}"
     "th,td{padding:.3rem .7rem;border-bottom:1px solid #d7dbe2;text-align:left;vertical-align:top}"
     "th{background:#eef1f5}td.n{text-align:right;font-variant-numeric:tabular-nums}"
     ".cards{display:flex;flex-wrap:wrap;gap:.8rem}.card{border:1px solid #d7dbe2;border-radius:6px;"
@@ -69,10 +69,64 @@ static const char *CSS =
     "figcaption{color:#444;font-size:.9rem}"
     ".warn{background:#fff4e0;border-left:4px solid #c77800;padding:.5rem .8rem}"
     ".caution{background:#eef3f8;border-left:4px solid #2b4a6f;padding:.5rem .8rem}"
+    ".first{border:2px solid #c77800;border-radius:6px;padding:.2rem 1rem;margin:1rem 0}"
+    ".first h2{border:none;margin:.6rem 0 .2rem}"
     "pre{background:#f6f7f9;border:1px solid #d7dbe2;padding:.7rem;overflow-x:auto;font-size:.82rem}"
     "nav a{margin-right:1rem}"
     "@media print{main{max-width:none;padding:0}nav{display:none}h2{break-after:avoid}"
-    "figure,table{break-inside:avoid}figure img{max-width:100%;border:none}pre{white-space:pre-wrap}}";
+    "figure,table{break-inside:avoid}figure img{max-width:100%;border:none}pre{white-space:pre-wrap}"
+    "table{display:table;font-size:.8rem}th,td{padding:.2rem .45rem}}";
+
+/* Warnings and cautions, boxed right under the summary: a reader who
+ * stops after the first screen has still seen them. */
+static void write_notes(FILE *f, const gw_results *r)
+{
+    fputs("<div class=\"first\"><h2 id=\"notes\">Read before use: warnings and cautions</h2>\n", f);
+    if (r->warnings.n == 0) fputs("<p>No warnings for this run.</p>\n", f);
+    else {
+        fputs("<div class=\"warn\"><ul>\n", f);
+        for (int i = 0; i < r->warnings.n; i++) {
+            fputs("<li>", f);
+            esc(f, r->warnings.item[i]);
+            fputs("</li>\n", f);
+        }
+        fputs("</ul></div>\n", f);
+    }
+    if (r->cautions.n > 0) {
+        fputs("<div class=\"caution\"><ul>\n", f);
+        for (int i = 0; i < r->cautions.n; i++) {
+            fputs("<li>", f);
+            esc(f, r->cautions.item[i]);
+            fputs("</li>\n", f);
+        }
+        fputs("</ul></div>\n", f);
+    }
+    fputs("<p></p></div>\n", f);
+}
+
+/* What a feature does to the aquifer, in words (net = in - out, the
+ * aquifer's view). */
+static const char *exchange_words(const gw_feature *ft, const gw_feature_budget *fb)
+{
+    switch (ft->type) {
+    case GW_FEAT_STREAM:
+        switch (fb->state) {
+        case GW_STATE_GAINING: return "gaining: takes water from the aquifer";
+        case GW_STATE_LOSING: return "losing: feeds the aquifer";
+        case GW_STATE_MIXED:
+            return fb->net < 0 ? "gaining and losing reaches; gaining overall"
+                               : "gaining and losing reaches; losing overall";
+        default: return "no exchange";
+        }
+    case GW_FEAT_DRAIN: return fb->out > 0 ? "drains the aquifer" : "dry: no flow";
+    case GW_FEAT_WELL: return fb->out > 0 ? "pumps from the aquifer" : fb->in > 0 ? "injects into the aquifer" : "idle";
+    case GW_FEAT_RECHARGE: return "recharges the aquifer";
+    default:
+        if (fb->in > 0 && fb->out > 0)
+            return fb->net < 0 ? "gives and takes; takes overall" : "gives and takes; gives overall";
+        return fb->out > 0 ? "takes water from the aquifer" : fb->in > 0 ? "gives water to the aquifer" : "no exchange";
+    }
+}
 
 int gw_report_html_write(const gw_results *r, const gw_map_layers *l, const gw_report_image *img,
                          int nimg, const char *path, gw_error *err)
@@ -95,9 +149,9 @@ int gw_report_html_write(const gw_results *r, const gw_map_layers *l, const gw_r
     esc(f, title);
     fprintf(f, "</h1>\n<p class=\"sub\">Steady-state groundwater model results, gwdivide %s. ", GWDIVIDE_VERSION);
     if (m && m->path) { fputs("Model file: <code>", f); esc(f, m->path); fputs("</code>.", f); }
-    fputs("</p>\n<nav><a href=\"#balance\">Balance</a><a href=\"#features\">Features</a>"
+    fputs("</p>\n<nav><a href=\"#notes\">Cautions</a><a href=\"#balance\">Balance</a><a href=\"#features\">Features</a>"
           "<a href=\"#maps\">Maps</a><a href=\"#divides\">Divides</a><a href=\"#obs\">Observations</a>"
-          "<a href=\"#notes\">Warnings and cautions</a><a href=\"#inputs\">Inputs</a></nav>\n", f);
+          "<a href=\"#inputs\">Inputs</a></nav>\n", f);
 
     /* Summary cards. */
     fputs("<h2 id=\"summary\">Summary</h2><div class=\"cards\">\n", f);
@@ -119,7 +173,13 @@ int gw_report_html_write(const gw_results *r, const gw_map_layers *l, const gw_r
                 r->solution.iterations == 1 ? "" : "s");
     if (l && l->ndivides)
         fprintf(f, "<div class=\"card\">Groundwater divides<b>%d</b></div>\n", l->ndivides);
+    if (r->obs_stats.n > 0)
+        fprintf(f, "<div class=\"card\">Fit to observed heads<b>RMS %s %s</b>mean %s %s, %d well%s</div>\n",
+                gw_fmt_num(nb, sizeof nb, r->obs_stats.rms_error, 3), lu,
+                gw_fmt_num(nb2, sizeof nb2, r->obs_stats.mean_error, 3), lu, r->obs_stats.n,
+                r->obs_stats.n == 1 ? "" : "s");
     fputs("</div>\n", f);
+    write_notes(f, r);
 
     /* Balance and features. */
     if (r->have_budget && r->problem) {
@@ -131,7 +191,7 @@ int gw_report_html_write(const gw_results *r, const gw_map_layers *l, const gw_r
         fprintf(f, "<h2 id=\"features\">Features</h2>\n<p>Signs are the aquifer's: inflow enters the "
                    "aquifer from the feature, outflow leaves the aquifer to it; a gaining stream "
                    "takes water from the aquifer.</p>\n<table><tr><th>Feature</th><th>Type</th>"
-                   "<th>State</th><th>Inflow (%s)</th><th>Outflow (%s)</th><th>Net (%s)</th></tr>\n",
+                   "<th>Exchange with the aquifer</th><th>Inflow (%s)</th><th>Outflow (%s)</th><th>Net (%s)</th></tr>\n",
                 flow, flow, flow);
         for (int i = 0; i < b->nfeatures && i < r->problem->nfeatures; i++) {
             const gw_feature_budget *fb = &b->feature[i];
@@ -140,8 +200,7 @@ int gw_report_html_write(const gw_results *r, const gw_map_layers *l, const gw_r
             fprintf(f, "</td><td>%s</td><td>%s</td><td class=\"n\">%s</td><td class=\"n\">%s</td>"
                        "<td class=\"n\">%s</td></tr>\n",
                     gw_feature_type_name(r->problem->features[i].type),
-                    /* gaining/losing is a stream word; other features show "-" */
-                    r->problem->features[i].type == GW_FEAT_STREAM ? gw_state_name(fb->state) : "-",
+                    exchange_words(&r->problem->features[i], fb),
                     num(nb, fb->in), num(nb2, fb->out), num(nb3, fb->net));
         }
         fputs("</table>\n", f);
@@ -160,6 +219,28 @@ int gw_report_html_write(const gw_results *r, const gw_map_layers *l, const gw_r
         fputs("\"><figcaption>", f);
         esc(f, img[i].caption);
         fputs("</figcaption></figure>\n", f);
+    }
+
+    /* Cross-section: recharge / discharge areas and flow systems (Toth 1963). */
+    if (r->section) {
+        const gw_section *s = r->section;
+        fputs("<h2 id=\"section\">Cross-section: flow systems</h2>\n", f);
+        fprintf(f, "<p>Recharge areas %s %s long, discharge areas %s %s long; %d hinge point%s. "
+                   "Flows are per %s of section width.</p>\n",
+                num(nb, s->recharge_length), lu, num(nb2, s->discharge_length), lu, s->nhinges,
+                s->nhinges == 1 ? "" : "s", lu);
+        if (s->nsystems > 0)
+            fputs("<table><tr><th>System</th><th>Recharge x</th><th>Discharge x</th><th>Flow</th>"
+                  "<th>Depth below water table</th></tr>\n", f);
+        for (int i = 0; i < s->nsystems; i++) {
+            const gw_flow_system *y = &s->system[i];
+            fprintf(f, "<tr><td>%s</td><td class=\"n\">%s&ndash;%s</td>", gw_system_kind_name(y->kind),
+                    num(nb, y->x_from), num(nb2, y->x_to));
+            fprintf(f, "<td class=\"n\">%s&ndash;%s</td><td class=\"n\">%s</td><td class=\"n\">%s</td></tr>\n",
+                    num(nb, s->area[y->discharge_area].x0), num(nb2, s->area[y->discharge_area].x1),
+                    num(nb3, y->flux), num(nb4, y->depth));
+        }
+        if (s->nsystems > 0) fputs("</table>\n", f);
     }
 
     /* Divides, catchments, capture zones. */
@@ -240,28 +321,6 @@ int gw_report_html_write(const gw_results *r, const gw_map_layers *l, const gw_r
                     gw_fmt_num(nb3, sizeof nb3, r->obs_stats.rms_error, 4), lu);
     }
 
-    /* Warnings and cautions. */
-    fputs("<h2 id=\"notes\">Warnings and cautions</h2>\n", f);
-    if (r->warnings.n == 0) fputs("<p>No warnings.</p>\n", f);
-    else {
-        fputs("<div class=\"warn\"><ul>\n", f);
-        for (int i = 0; i < r->warnings.n; i++) {
-            fputs("<li>", f);
-            esc(f, r->warnings.item[i]);
-            fputs("</li>\n", f);
-        }
-        fputs("</ul></div>\n", f);
-    }
-    if (r->cautions.n > 0) {
-        fputs("<div class=\"caution\"><ul>\n", f);
-        for (int i = 0; i < r->cautions.n; i++) {
-            fputs("<li>", f);
-            esc(f, r->cautions.item[i]);
-            fputs("</li>\n", f);
-        }
-        fputs("</ul></div>\n", f);
-    }
-
     /* The model file as given, so the report stands on its own. */
     fputs("<h2 id=\"inputs\">Model inputs</h2>\n", f);
     FILE *in = (m && m->path) ? fopen(m->path, "r") : NULL;
@@ -279,9 +338,10 @@ int gw_report_html_write(const gw_results *r, const gw_map_layers *l, const gw_r
         fputs("<p>The model file could not be read back for this report.</p>\n", f);
     }
     fputs("</main></body></html>\n", f);
-    if (ferror(f)) {
+    if (fflush(f) != 0 || ferror(f)) {
+        int e = errno;
         fclose(f);
-        return gw_fail(err, "cannot write %s", path);
+        return gw_fail(err, "cannot write %s: %s", path, e ? strerror(e) : "write error");
     }
     if (fclose(f) != 0) return gw_fail(err, "cannot write %s: %s", path, strerror(errno));
     return 0;

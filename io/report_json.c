@@ -280,21 +280,51 @@ static void write_ring(gw_json *j, const gw_capring *rg)
     gw_json_array_end(j);
 }
 
-/* "area", "polygon" (largest outer ring) and, when the zone has more than
- * one ring, "other_rings" (further parts counter-clockwise, holes
- * clockwise). */
+/* "holes" of outer ring `outer` (clockwise rings), when it has any. */
+static void write_holes(gw_json *j, const gw_capzone *z, int outer)
+{
+    int any = 0;
+    for (int i = 0; i < z->nring; i++) {
+        if (gw_capzone_parent(z, i) != outer) continue;
+        if (!any) {
+            gw_json_key(j, "holes");
+            gw_json_array_begin(j);
+            any = 1;
+        }
+        write_ring(j, &z->ring[i]);
+    }
+    if (any) gw_json_array_end(j);
+}
+
+/* "area" (holes subtracted), "polygon" (largest outer ring, counter-
+ * clockwise), "holes" (its holes, clockwise) and, when the zone has
+ * further separate parts, "parts": [{"area", "polygon", "holes"}]. */
 static void write_capzone(gw_json *j, const gw_capzone *z)
 {
     gw_json_kv_double(j, "area", z->area);
     gw_json_key(j, "polygon");
     write_ring(j, z->outer >= 0 ? &z->ring[z->outer] : NULL);
-    if (z->nring > 1) {
-        gw_json_key(j, "other_rings");
-        gw_json_array_begin(j);
-        for (int i = 0; i < z->nring; i++)
-            if (i != z->outer) write_ring(j, &z->ring[i]);
-        gw_json_array_end(j);
+    if (z->outer < 0) return;
+    write_holes(j, z, z->outer);
+    int any = 0;
+    for (int i = 0; i < z->nring; i++) {
+        if (i == z->outer || !(z->ring[i].area > 0)) continue;
+        if (!any) {
+            gw_json_key(j, "parts");
+            gw_json_array_begin(j);
+            any = 1;
+        }
+        double a = z->ring[i].area;
+        for (int h = 0; h < z->nring; h++)
+            if (gw_capzone_parent(z, h) == i) a += z->ring[h].area;
+        gw_json_object_begin(j);
+        gw_json_kv_double(j, "area", a);
+        gw_json_key(j, "polygon");
+        write_ring(j, &z->ring[i]);
+        write_holes(j, z, i);
+        gw_json_object_end(j);
     }
+    if (any) gw_json_array_end(j);
 }
 
 static void write_capture_zones(gw_json *j, const gw_results *r)
@@ -333,6 +363,7 @@ static void write_capture_zones(gw_json *j, const gw_results *r)
         gw_json_kv_double(j, "well_cell_share", z->well_cell_share);
         gw_json_kv_double(j, "weak_sink_path_fraction", z->weak_pass_share);
         gw_json_kv_int(j, "paths", z->seeds);
+        gw_json_kv_int(j, "points_decided", z->classified);   /* lattice points needing no path */
         gw_json_key(j, "path_ends");
         gw_json_object_begin(j);
         for (int e = GW_END_SINK; e <= GW_END_MAX_STEPS; e++)

@@ -113,6 +113,39 @@ oom:
     return gw_fail(err, "out of memory");
 }
 
+/* "N cells went dry" with where: the block of columns/rows they span, its
+ * map extent, and the driest cell, so the user can find them on the map. */
+static int warn_dry(gw_results *r)
+{
+    const gw_solution *s = &r->solution;
+    const gw_problem *p = r->problem;
+    const gw_grid *g = &p->grid;
+    int cmin = g->nx, cmax = -1, rmin = g->ny, rmax = -1, worst = -1;
+    double depth = -1.0;
+    for (int k = 0; k < s->ncells && p->type == GW_UNCONFINED; k++) {
+        if (!p->active[k] || !(s->head[k] <= p->bottom[k])) continue;
+        int c = k % g->nx, rw = k / g->nx;
+        if (c < cmin) cmin = c;
+        if (c > cmax) cmax = c;
+        if (rw < rmin) rmin = rw;
+        if (rw > rmax) rmax = rw;
+        if (p->bottom[k] - s->head[k] > depth) { depth = p->bottom[k] - s->head[k]; worst = k; }
+    }
+    const char *u = r->model && r->model->length_unit ? r->model->length_unit : "";
+    if (worst < 0)
+        return gw_strlist_add(&r->warnings, "%d cell%s went dry (head at or below the aquifer bottom); "
+                              "results there are not meaningful", s->ndry, s->ndry == 1 ? "" : "s");
+    return gw_strlist_add(&r->warnings,
+                          "%d cell%s went dry (head at or below the aquifer bottom), within columns %d-%d, "
+                          "rows %d-%d (x %.6g to %.6g, y %.6g to %.6g); the driest is column %d, row %d "
+                          "(x %.6g, y %.6g), %.3g %s below the bottom; results there are not meaningful",
+                          s->ndry, s->ndry == 1 ? "" : "s", cmin + 1, cmax + 1, rmin + 1, rmax + 1,
+                          g->x0 + cmin * g->dx, g->x0 + (cmax + 1) * g->dx,
+                          gw_grid_ytop(g) - (rmax + 1) * g->dy, gw_grid_ytop(g) - rmin * g->dy,
+                          worst % g->nx + 1, worst / g->nx + 1, gw_grid_xc(g, worst % g->nx),
+                          gw_grid_yc(g, worst / g->nx), depth, u);
+}
+
 int gw_results_check(gw_results *r, gw_error *err)
 {
     if (r->have_solution) {
@@ -120,9 +153,22 @@ int gw_results_check(gw_results *r, gw_error *err)
         if (!s->converged &&
             gw_strlist_add(&r->warnings, "the solution did not converge in %d iterations", s->iterations) != 0)
             return gw_fail(err, "out of memory");
-        if (s->ndry > 0 &&
-            gw_strlist_add(&r->warnings, "%d cell%s went dry (head at or below the aquifer bottom); "
-                           "results there are not meaningful", s->ndry, s->ndry == 1 ? "" : "s") != 0)
+        if (s->ndry > 0 && warn_dry(r) != 0)
+            return gw_fail(err, "out of memory");
+    }
+    if (r->have_solution && r->model && r->model->contour_interval > 0) {
+        double lo = HUGE_VAL, hi = -HUGE_VAL;
+        for (int k = 0; k < r->solution.ncells; k++)
+            if (isfinite(r->solution.head[k])) {
+                lo = fmin(lo, r->solution.head[k]);
+                hi = fmax(hi, r->solution.head[k]);
+            }
+        /* The maps and contour layers fall back to an automatic interval
+         * past 400 levels (map_head.c, results_gpkg.c, map_section.c). */
+        if (hi > lo && (hi - lo) / r->model->contour_interval > 400 &&
+            gw_strlist_add(&r->warnings, "output.contour_interval %g gives more than 400 contours over the head "
+                           "range %.6g to %.6g; maps and contour layers use an automatic interval instead",
+                           r->model->contour_interval, lo, hi) != 0)
             return gw_fail(err, "out of memory");
     }
     if (r->have_budget && fabs(r->budget.discrepancy_percent) > 1e-3 &&
@@ -136,14 +182,27 @@ int gw_results_add_cautions(gw_results *r, gw_error *err)
 {
     static const char *text[] = {
         "Screening tool: results support, and do not replace, a site investigation.",
-        "Steady state, two-dimensional flow under Dupuit assumptions (plan view) or per unit width "
-        "(cross-section); no storage, no vertical flow within the aquifer.",
+        "Steady state, two-dimensional flow in plan view under Dupuit assumptions: no storage, no "
+        "vertical flow within the aquifer.",
         "Divides, catchments and capture zones are sensitive to recharge and hydraulic conductivity; "
         "test how they move with plausible ranges before relying on them.",
         "Wellhead protection areas and similar decisions are set under local regulation and require "
         "licensed professional judgement.",
     };
-    for (size_t i = 0; i < sizeof text / sizeof text[0]; i++)
-        if (gw_strlist_add(&r->cautions, "%s", text[i]) != 0) return gw_fail(err, "out of memory");
+    /* A vertical section has vertical flow but none across its plane. */
+    static const char *section_text[] = {
+        "Screening tool: results support, and do not replace, a site investigation.",
+        "Steady state, two-dimensional flow in a vertical section per unit width: no storage, and no "
+        "flow into or out of the plane of the section (the section must follow the flow).",
+        "The top boundary (a water table of given heads, or recharge with seepage faces) is prescribed, "
+        "not a computed free surface: recharge and discharge areas, hinge points and flow systems follow "
+        "from it and from the conductivity and anisotropy; test how they move with plausible ranges "
+        "before relying on them.",
+    };
+    int sec = r->problem && r->problem->type == GW_SECTION;
+    const char **t = sec ? section_text : text;
+    size_t n = sec ? sizeof section_text / sizeof *section_text : sizeof text / sizeof *text;
+    for (size_t i = 0; i < n; i++)
+        if (gw_strlist_add(&r->cautions, "%s", t[i]) != 0) return gw_fail(err, "out of memory");
     return 0;
 }

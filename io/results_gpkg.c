@@ -276,6 +276,13 @@ int gw_gpkg_contours(gw_gpkg *g, const char *name, const gw_grid *grid, const do
         }
     }
     if (!(interval > 0)) interval = auto_interval(lo, hi);
+    /* An interval too fine for the head range (the model's
+     * output.contour_interval; results.c warns) would give thousands of
+     * levels: fall back to the automatic one, as the maps do. */
+    if (hi > lo && (hi - lo) / interval > 400) interval = auto_interval(lo, hi);
+    /* Heads so far apart that their range overflows have no sensible
+     * contours: the layer is left empty. */
+    int skip = !isfinite(hi - lo) || !isfinite(interval) || !(interval > 0);
     CPLPushErrorHandler(CPLQuietErrorHandler);
     CPLErrorReset();
     int rc = -1;
@@ -283,6 +290,7 @@ int gw_gpkg_contours(gw_gpkg *g, const char *name, const gw_grid *grid, const do
     gw_field f[2] = {{"id", GW_FIELD_INT}, {level_field, GW_FIELD_REAL}};
     g->kind = GW_VGEOM_LINE;
     if (make_layer(g, name, wkbLineString, f, 2, description, err) != 0) goto done;
+    if (skip) { rc = 0; goto done; }
     mem = mem_raster(grid, GDT_Float64, buf, ND);
     if (!mem) { gw_fail(err, "cannot prepare heads for contouring: %s", gdal_msg()); goto done; }
     char **opts = NULL;

@@ -212,6 +212,8 @@ int gw_yget_string(gw_msgs *m, const gw_ynode *n, const char *what, char **out)
     return 0;
 }
 
+#define GW_MAX_COORD 1e12
+
 int gw_yget_point(gw_msgs *m, const gw_ynode *n, const char *what, double xy[2])
 {
     if (!n || n->kind != GW_YSEQ || n->n != 2) {
@@ -221,8 +223,17 @@ int gw_yget_point(gw_msgs *m, const gw_ynode *n, const char *what, double xy[2])
         return -1;
     }
     int bad = 0;
-    bad |= gw_yget_number(m, n->kids[0], what, &xy[0]) < 0;
-    bad |= gw_yget_number(m, n->kids[1], what, &xy[1]) < 0;
+    for (int i = 0; i < 2; i++) {
+        if (gw_yget_number(m, n->kids[i], what, &xy[i]) < 0) {
+            bad = 1;
+        } else if (fabs(xy[i]) > GW_MAX_COORD) {
+            /* Far beyond any map: lengths and areas computed from such
+             * points would overflow to infinity. */
+            gw_msgs_add(m, n->kids[i]->line, n->kids[i]->col, "%s: coordinate %g is out of range (at most %g "
+                        "in size)", what, xy[i], GW_MAX_COORD);
+            bad = 1;
+        }
+    }
     return bad ? -1 : 0;
 }
 

@@ -139,18 +139,98 @@ done:
     return rc;
 }
 
+/* ---- Where the tracking rules send each cell's water ------------------- */
+
+/* Cell classes for one well: the well's own cells, cells decided from the
+ * reach share (all in / all out) and the band between, where paths are
+ * tracked.  Also the stop_mask values tracking reports back. */
+enum { CL_BAND = 0, CL_WELL = 1, CL_IN = 2, CL_OUT = 3 };
+
+/* A cell is decided without tracking when its reach share is within this of
+ * 0 or 1.  The mixing partition smears a path-line boundary over a band a
+ * few cells wide; 1e-9 of the water is far below what a lattice of a few
+ * seeds per cell can resolve, so a cell this close to 1 holds no seed whose
+ * path misses the well (and likewise near 0). */
+#define DECIDE_EPS 1e-9
+
+static int usable_cell(const gw_flowfield *f, size_t k)
+{
+    return f->active[k] && f->sat_thick[k] > 0.0 && f->porosity[k] > 0.0;
+}
+
+/* Reach share r[k]: the part of the water leaving cell k that the tracking
+ * rules deliver to the well -- 1 in the well's cells, 0 where a path stops
+ * at another sink (weak-sink rule of t) or cannot enter, else the
+ * flux-weighted mean over the outflow faces (a path leaves a Pollock cell
+ * only through a face with outflow).  r = 1 or 0 then means every path
+ * from the cell ends in the well, or none does, apart from sets of zero
+ * width.  For the weak-sink warning: pw[k], the share of the captured
+ * water that passes a weak sink of another feature, and wr[k], the share
+ * of it such sinks leave (both flux-weighted: an estimate for the seeds
+ * that are not tracked all the way). */
+static void reach_pass(const gw_flowfield *f, const long *order, long norder, long ncycle,
+                       const unsigned char *cls, const gw_track_options *t, double *r,
+                       double *pw, double *wr)
+{
+    size_t nc = gw_grid_ncells(&f->grid);
+    for (size_t k = 0; k < nc; k++) {
+        r[k] = pw[k] = 0.0;
+        wr[k] = 1.0;
+    }
+    int sweeps = ncycle > 0 ? 50 : 1;
+    for (int s = 0; s < sweeps; s++) {
+        long from = s == 0 ? 0 : norder - ncycle;
+        for (long i = from; i < norder; i++) {
+            size_t k = (size_t)order[i];
+            double rk = 0.0, pk = 0.0, wk = 1.0, frac;
+            if (cls[k] == CL_WELL) {
+                rk = 1.0;
+            } else if (usable_cell(f, k) && !gw_track_sink_stops(f, (int)k, t, &frac)) {
+                double out = 0.0, num = 0.0, nump = 0.0, numw = 0.0;
+                for (int d = 0; d < 4; d++) {
+                    long j;
+                    double q = face_out(f, k, d, &j);
+                    if (!(q > 0.0))
+                        continue;
+                    out += q;
+                    if (j >= 0 && r[j] > 0.0) {
+                        double a = q * r[j];
+                        num += a;
+                        nump += a * pw[j];
+                        numw += a * wr[j];
+                    }
+                }
+                if (out > 0.0 && num > 0.0) {
+                    rk = num / out;
+                    pk = nump / num;
+                    wk = numw / num;
+                }
+                if (frac > 0.0) {
+                    pk = 1.0;
+                    wk *= 1.0 - frac;
+                }
+            }
+            r[k] = rk > 1.0 ? 1.0 : rk;
+            pw[k] = pk;
+            wr[k] = wk;
+        }
+    }
+}
+
 /* ---- Zone tracing ------------------------------------------------------ */
 
 typedef struct {
     const gw_flowfield *f;
-    gw_track_options topt;
+    /* Unlimited time: stop in the well (CL_WELL) and in decided cells
+     * (CL_IN, CL_OUT).  Time-limited: stop in the well and CL_OUT only. */
+    gw_track_options topt, ttopt;
     int refine;
     /* Lattice: NX x NY nodes, x east (I), y north (J); the outermost ring
      * of nodes lies on the box edge and counts as outside. */
     int NX, NY;
     double *xs, *ys;
     unsigned char *cap;   /* node captured (unlimited time) */
-    double *time;         /* travel time of captured nodes */
+    double *time;         /* travel time of captured nodes (HUGE_VAL: beyond the longest) */
     /* Scratch for one zone. */
     int *emap;            /* lattice edge -> point index */
     double *px, *py;
@@ -161,12 +241,16 @@ typedef struct {
 static int inside_point(lattice *L, double x, double y, double tlim, gw_error *err)
 {
     gw_track_result r = {0};
-    gw_track_options o = L->topt;
-    if (tlim < HUGE_VAL)
-        o.max_time = tlim * (1.0 + 1e-9);
+    if (tlim == HUGE_VAL) {
+        if (gw_track(L->f, x, y, &L->topt, &r, err) != 0)
+            return -1;
+        return r.end == GW_END_STOP_CELL && (r.stop_value == CL_WELL || r.stop_value == CL_IN);
+    }
+    gw_track_options o = L->ttopt;
+    o.max_time = tlim * (1.0 + 1e-9);
     if (gw_track(L->f, x, y, &o, &r, err) != 0)
         return -1;
-    return r.end == GW_END_STOP_CELL && r.time <= tlim;
+    return r.end == GW_END_STOP_CELL && r.stop_value == CL_WELL && r.time <= tlim;
 }
 
 /* Crossing point on the lattice edge from node a (inside) to b (outside). */
@@ -312,6 +396,31 @@ static int trace_zone(lattice *L, double tlim, gw_capzone *z, gw_error *err)
     return 0;
 }
 
+/* Even-odd test of point (x, y) against a ring. */
+static int ring_contains(const gw_capring *rg, double x, double y)
+{
+    int in = 0;
+    for (int i = 0, j = rg->n - 1; i < rg->n; j = i++)
+        if ((rg->y[i] > y) != (rg->y[j] > y) &&
+            x < rg->x[j] + (rg->x[i] - rg->x[j]) * (y - rg->y[j]) / (rg->y[i] - rg->y[j]))
+            in = !in;
+    return in;
+}
+
+int gw_capzone_parent(const gw_capzone *z, int ring)
+{
+    if (ring < 0 || ring >= z->nring || !(z->ring[ring].area < 0.0) || z->ring[ring].n < 1)
+        return -1;
+    /* Rings never cross, so one vertex of the hole decides. */
+    double x = z->ring[ring].x[0], y = z->ring[ring].y[0];
+    int best = -1;
+    for (int i = 0; i < z->nring; i++)
+        if (z->ring[i].area > 0.0 && (best < 0 || z->ring[i].area < z->ring[best].area) &&
+            ring_contains(&z->ring[i], x, y))
+            best = i;
+    return best;
+}
+
 /* ---- Capture zones ----------------------------------------------------- */
 
 static void capture_zone_free(gw_capture_zone *c)
@@ -339,52 +448,376 @@ static int cmp_double(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
-/* One well feature: source split from w, zones by tracking. */
+/* Work arrays shared by all wells (length ncells). */
+typedef struct {
+    long *order;
+    long norder, ncycle;
+    double *fout, *w, *reach, *pw, *wr;
+    unsigned char *cls, *cmask, *tmask;
+} workspace;
+
+static void workspace_free(workspace *ws)
+{
+    free(ws->order);
+    free(ws->fout);
+    free(ws->w);
+    free(ws->reach);
+    free(ws->pw);
+    free(ws->wr);
+    free(ws->cls);
+    free(ws->cmask);
+    free(ws->tmask);
+}
+
+static int workspace_init(workspace *ws, size_t nc)
+{
+    memset(ws, 0, sizeof *ws);
+    ws->order = malloc(nc * sizeof *ws->order);
+    ws->fout = malloc(nc * sizeof *ws->fout);
+    ws->w = malloc(nc * sizeof *ws->w);
+    ws->reach = malloc(nc * sizeof *ws->reach);
+    ws->pw = malloc(nc * sizeof *ws->pw);
+    ws->wr = malloc(nc * sizeof *ws->wr);
+    ws->cls = malloc(nc);
+    ws->cmask = malloc(nc);
+    ws->tmask = malloc(nc);
+    return ws->order && ws->fout && ws->w && ws->reach && ws->pw && ws->wr && ws->cls &&
+           ws->cmask && ws->tmask ? 0 : -1;
+}
+
+/* Lattice nodes are decided coarse to fine: nodes in cells the reach
+ * share decides cost nothing; the other nodes are tracked only at the
+ * corners of blocks of COARSE x COARSE lattice squares, and a block is
+ * tracked node by node only where its known nodes disagree or a
+ * neighbouring block's edge shows the boundary entering it (so a boundary
+ * is followed from block to block and never cut).  The nodes of the
+ * remaining blocks take their corners' state.  Only zones or holes that
+ * fit wholly inside one block (under two cells across at the default
+ * seeding) can be missed, against all of the capture set otherwise. */
+#define COARSE 4
+
+enum { ND_UNKNOWN = 0, ND_IN = 1, ND_OUT = 2 };
+
+typedef struct {
+    lattice *L;
+    const gw_grid *g;
+    const workspace *ws;
+    gw_capture_zone *cz;
+    int s, c0, r1;
+    unsigned char *st;     /* node state */
+    long ncap;             /* captured nodes */
+    double npass;          /* expected number of them that pass a weak sink */
+} seeding;
+
+/* Record node n as captured; pass / kept: its share of passing a weak sink
+ * of another feature and the water such sinks leave. */
+static void set_in(seeding *sd, size_t n, double pass, double kept)
+{
+    sd->st[n] = ND_IN;
+    sd->L->cap[n] = 1;
+    sd->ncap++;
+    sd->npass += pass;
+    if (pass > 0.0 && kept < sd->cz->min_retained)
+        sd->cz->min_retained = kept;
+}
+
+static size_t node_cell(const seeding *sd, size_t n)
+{
+    int I = (int)(n % (size_t)sd->L->NX), J = (int)(n / (size_t)sd->L->NX);
+    int col = sd->c0 + (I - 1) / sd->s, row = sd->r1 - (J - 1) / sd->s;
+    return (size_t)row * sd->g->nx + col;
+}
+
+/* State of node n without tracking where the cell decides it. */
+static void decide_free(seeding *sd, size_t n)
+{
+    const lattice *L = sd->L;
+    int I = (int)(n % (size_t)L->NX), J = (int)(n / (size_t)L->NX);
+    if (I == 0 || J == 0 || I == L->NX - 1 || J == L->NY - 1) {
+        sd->st[n] = ND_OUT;
+        return;
+    }
+    size_t k = node_cell(sd, n);
+    switch (sd->ws->cls[k]) {
+    case CL_OUT: sd->st[n] = ND_OUT; sd->cz->classified++; break;
+    case CL_WELL: sd->L->time[n] = 0.0; set_in(sd, n, 0.0, 1.0); sd->cz->classified++; break;
+    case CL_IN: set_in(sd, n, sd->ws->pw[k], sd->ws->wr[k]); sd->cz->classified++; break;
+    default: break;
+    }
+}
+
+/* State of node n, tracking its path if nothing decides it yet. */
+static int eval_node(seeding *sd, size_t n, gw_error *err)
+{
+    if (sd->st[n] != ND_UNKNOWN)
+        return sd->st[n];
+    lattice *L = sd->L;
+    gw_track_result r = {0};
+    if (gw_track(L->f, L->xs[n % (size_t)L->NX], L->ys[n / (size_t)L->NX], &L->topt, &r, err) != 0)
+        return -1;
+    sd->cz->seeds++;
+    sd->cz->ends[r.end]++;
+    if (r.end != GW_END_STOP_CELL || r.stop_value == CL_OUT) {
+        sd->st[n] = ND_OUT;
+        return ND_OUT;
+    }
+    /* Ended in the well, or in a cell all of whose paths do: the weak sinks
+     * passed so far, then that cell's record. */
+    int tail = r.stop_value == CL_IN;
+    set_in(sd, n, r.weak_passed ? 1.0 : tail ? sd->ws->pw[r.cell] : 0.0,
+           r.retained * (tail ? sd->ws->wr[r.cell] : 1.0));
+    return ND_IN;
+}
+
+/* Node range of block index b along an axis of nn nodes. */
+static void block_span(int b, int nn, int *lo, int *hi)
+{
+    *lo = b * COARSE;
+    *hi = *lo + COARSE < nn - 1 ? *lo + COARSE : nn - 1;
+}
+
+static int seed_lattice(seeding *sd, gw_error *err)
+{
+    lattice *L = sd->L;
+    const int NX = L->NX, NY = L->NY;
+    const size_t nn = (size_t)NX * NY;
+    const int BX = (NX - 2) / COARSE + 1, BY = (NY - 2) / COARSE + 1;
+    const size_t nb = (size_t)BX * BY;
+    int rc = -1;
+    sd->st = calloc(nn, 1);
+    unsigned char *flag = calloc(nb, 1);
+    int *queue = malloc(nb * sizeof *queue);
+    if (!sd->st || !flag || !queue) {
+        gw_fail(err, "out of memory for the capture-zone lattice");
+        goto done;
+    }
+    for (size_t n = 0; n < nn; n++) {
+        L->time[n] = HUGE_VAL;
+        decide_free(sd, n);
+    }
+    /* Block corners. */
+    for (int J = 0; J < NY; J = J + COARSE < NY - 1 ? J + COARSE : (J == NY - 1 ? NY : NY - 1))
+        for (int I = 0; I < NX; I = I + COARSE < NX - 1 ? I + COARSE : (I == NX - 1 ? NX : NX - 1))
+            if (eval_node(sd, (size_t)J * NX + I, err) < 0)
+                goto done;
+    /* Blocks whose known nodes disagree. */
+    long head = 0, tail = 0;
+    for (int by = 0; by < BY; by++)
+        for (int bx = 0; bx < BX; bx++) {
+            int i0, i1, j0, j1, seen = 0;
+            block_span(bx, NX, &i0, &i1);
+            block_span(by, NY, &j0, &j1);
+            for (int J = j0; J <= j1 && !flag[by * BX + bx]; J++)
+                for (int I = i0; I <= i1; I++) {
+                    int v = sd->st[(size_t)J * NX + I];
+                    if (v == ND_UNKNOWN)
+                        continue;
+                    if (seen && v != seen) {
+                        flag[by * BX + bx] = 1;
+                        queue[tail++] = by * BX + bx;
+                        break;
+                    }
+                    seen = v;
+                }
+        }
+    /* Track every node of a flagged block, then flag the neighbours whose
+     * shared edge shows a state other than their corners'. */
+    while (head < tail) {
+        int b = queue[head++], bx = b % BX, by = b / BX;
+        int i0, i1, j0, j1;
+        block_span(bx, NX, &i0, &i1);
+        block_span(by, NY, &j0, &j1);
+        for (int J = j0; J <= j1; J++)
+            for (int I = i0; I <= i1; I++)
+                if (eval_node(sd, (size_t)J * NX + I, err) < 0)
+                    goto done;
+        static const int DX4[4] = {1, -1, 0, 0}, DY4[4] = {0, 0, 1, -1};
+        for (int d = 0; d < 4; d++) {
+            int nbx = bx + DX4[d], nby = by + DY4[d];
+            if (nbx < 0 || nby < 0 || nbx >= BX || nby >= BY || flag[nby * BX + nbx])
+                continue;
+            int corner = sd->st[(size_t)j0 * NX + (DX4[d] > 0 ? i1 : i0)];
+            if (DY4[d] > 0)
+                corner = sd->st[(size_t)j1 * NX + i0];
+            int differs = 0;
+            if (DX4[d] != 0) {
+                int I = DX4[d] > 0 ? i1 : i0;
+                for (int J = j0; J <= j1; J++)
+                    differs |= sd->st[(size_t)J * NX + I] != corner;
+            } else {
+                int J = DY4[d] > 0 ? j1 : j0;
+                for (int I = i0; I <= i1; I++)
+                    differs |= sd->st[(size_t)J * NX + I] != corner;
+            }
+            if (differs) {
+                flag[nby * BX + nbx] = 1;
+                queue[tail++] = nby * BX + nbx;
+            }
+        }
+    }
+    /* Unflagged blocks: every known node agrees; the rest follow. */
+    for (int by = 0; by < BY; by++)
+        for (int bx = 0; bx < BX; bx++) {
+            if (flag[by * BX + bx])
+                continue;
+            int i0, i1, j0, j1;
+            block_span(bx, NX, &i0, &i1);
+            block_span(by, NY, &j0, &j1);
+            int v = sd->st[(size_t)j0 * NX + i0];
+            for (int J = j0; J <= j1; J++)
+                for (int I = i0; I <= i1; I++) {
+                    size_t n = (size_t)J * NX + I;
+                    if (sd->st[n] != ND_UNKNOWN)
+                        continue;
+                    sd->cz->classified++;
+                    if (v == ND_IN) {
+                        size_t k = node_cell(sd, n);
+                        set_in(sd, n, sd->ws->pw[k], sd->ws->wr[k]);
+                    } else {
+                        sd->st[n] = ND_OUT;
+                    }
+                }
+        }
+    rc = 0;
+done:
+    free(sd->st);
+    sd->st = NULL;
+    free(flag);
+    free(queue);
+    return rc;
+}
+
+/* Travel times of the captured nodes that reach the well within tmax:
+ * flood outwards from the well's cells over the cells holding such nodes
+ * (plus a fringe of one cell), tracking each captured node there with the
+ * time limit.  Zones are path-connected to the well, so nothing inside
+ * them is missed, and nodes far up the capture zone are never tracked. */
+static int node_times(lattice *L, const unsigned char *cls, const gw_grid *g, int s, int c0,
+                      int r0, int c1, int r1, double tmax, gw_error *err)
+{
+    int bw = c1 - c0 + 1, bh = r1 - r0 + 1;
+    size_t nb = (size_t)bw * bh;
+    unsigned char *vis = calloc(nb, 1);
+    int *queue = malloc(nb * sizeof *queue);
+    if (!vis || !queue) {
+        free(vis);
+        free(queue);
+        return gw_fail(err, "out of memory for travel-time zones");
+    }
+    long head = 0, tail = 0;
+    for (int row = r0; row <= r1; row++)
+        for (int col = c0; col <= c1; col++)
+            if (cls[(size_t)row * g->nx + col] == CL_WELL) {
+                int b = (row - r0) * bw + (col - c0);
+                vis[b] = 1;
+                queue[tail++] = b;
+            }
+    gw_track_options o = L->ttopt;
+    o.max_time = tmax * (1.0 + 1e-9);
+    int rc = 0;
+    while (head < tail) {
+        int b = queue[head++];
+        int col = c0 + b % bw, row = r0 + b / bw;
+        int hot = cls[(size_t)row * g->nx + col] == CL_WELL;
+        for (int j = 0; j < s && !hot; j++)
+            for (int i = 0; i < s; i++) {
+                size_t n = (size_t)(1 + (r1 - row) * s + j) * L->NX + 1 + (col - c0) * s + i;
+                if (!L->cap[n])
+                    continue;
+                gw_track_result r = {0};
+                if (gw_track(L->f, L->xs[n % L->NX], L->ys[n / L->NX], &o, &r, err) != 0) {
+                    rc = -1;
+                    goto done;
+                }
+                if (r.end == GW_END_STOP_CELL && r.stop_value == CL_WELL && r.time <= o.max_time) {
+                    L->time[n] = r.time;
+                    hot = 1;
+                }
+            }
+        if (hot) {
+            /* The well's nodes have time 0 (set by the caller); finish the
+             * cell's other nodes before spreading. */
+            for (int j = 0; j < s; j++)
+                for (int i = 0; i < s; i++) {
+                    size_t n = (size_t)(1 + (r1 - row) * s + j) * L->NX + 1 + (col - c0) * s + i;
+                    if (!L->cap[n] || L->time[n] < HUGE_VAL ||
+                        cls[(size_t)row * g->nx + col] == CL_WELL)
+                        continue;
+                    gw_track_result r = {0};
+                    if (gw_track(L->f, L->xs[n % L->NX], L->ys[n / L->NX], &o, &r, err) != 0) {
+                        rc = -1;
+                        goto done;
+                    }
+                    if (r.end == GW_END_STOP_CELL && r.stop_value == CL_WELL &&
+                        r.time <= o.max_time)
+                        L->time[n] = r.time;
+                }
+            for (int dr = -1; dr <= 1; dr++)
+                for (int dc = -1; dc <= 1; dc++) {
+                    int cc = col + dc, rr = row + dr;
+                    if (cc < c0 || cc > c1 || rr < r0 || rr > r1)
+                        continue;
+                    int nb2 = (rr - r0) * bw + (cc - c0);
+                    if (vis[nb2] || cls[(size_t)rr * g->nx + cc] == CL_OUT)
+                        continue;
+                    vis[nb2] = 1;
+                    queue[tail++] = nb2;
+                }
+        }
+    }
+done:
+    free(vis);
+    free(queue);
+    return rc;
+}
+
+/* One well feature: zones by tracking, in the cells the reach share leaves
+ * undecided. */
 static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture_options *o,
-                    const double *w, const double *fout, const double *times,
-                    gw_capture_zone *cz, gw_error *err)
+                    workspace *ws, const double *times, gw_capture_zone *cz, gw_error *err)
 {
     const gw_grid *g = &p->grid;
     size_t nc = gw_grid_ncells(g);
     const int s = o->seeds_per_cell > 0 ? o->seeds_per_cell : 2;
     int rc = -1;
     lattice L = {0};
-    unsigned char *stop = calloc(nc, 1), *cand = calloc(nc, 1);
-    if (!stop || !cand) {
-        gw_fail(err, "out of memory for capture zones");
-        goto done;
-    }
-    /* Cells the well takes water from stop every path; candidates are cells
-     * with a share above round-off, and their neighbours. */
+    gw_track_options_default(&L.topt);
+    L.topt.weak = o->weak;
+    L.topt.weak_threshold = o->weak_threshold;
+    /* Cells the well takes water from stop every path. */
+    for (size_t k = 0; k < nc; k++)
+        ws->cls[k] = ws->fout[k] > 0.0 ? CL_WELL : CL_BAND;
+    reach_pass(f, ws->order, ws->norder, ws->ncycle, ws->cls, &L.topt, ws->reach, ws->pw, ws->wr);
     int c0 = g->nx, c1 = -1, r0 = g->ny, r1 = -1;
     for (size_t k = 0; k < nc; k++) {
-        if (fout[k] > 0.0)
-            stop[k] = 1;
-        if (!(w[k] > 1e-6 || stop[k]))
+        double r = ws->reach[k];
+        if (ws->cls[k] != CL_WELL)
+            ws->cls[k] = !(r > DECIDE_EPS) ? CL_OUT : r >= 1.0 - DECIDE_EPS ? CL_IN : CL_BAND;
+        ws->cmask[k] = ws->cls[k];
+        ws->tmask[k] = ws->cls[k] == CL_IN ? 0 : ws->cls[k];
+        if (ws->cls[k] == CL_OUT)
             continue;
         int col = (int)(k % (size_t)g->nx), row = (int)(k / (size_t)g->nx);
-        for (int dr = -1; dr <= 1; dr++)
-            for (int dc = -1; dc <= 1; dc++) {
-                int cc = col + dc, rr = row + dr;
-                if (cc < 0 || rr < 0 || cc >= g->nx || rr >= g->ny)
-                    continue;
-                cand[(size_t)rr * g->nx + cc] = 1;
-                if (cc < c0) c0 = cc;
-                if (cc > c1) c1 = cc;
-                if (rr < r0) r0 = rr;
-                if (rr > r1) r1 = rr;
-            }
+        if (col < c0) c0 = col;
+        if (col > c1) c1 = col;
+        if (row < r0) r0 = row;
+        if (row > r1) r1 = row;
     }
     cz->capture.outer = -1;
+    cz->min_retained = 1.0;
     if (c1 < 0) {
         rc = 0;
         goto done;
     }
+    /* One cell of margin, so the zone never touches the lattice edge. */
+    if (c0 > 0) c0--;
+    if (r0 > 0) r0--;
+    if (c1 + 1 < g->nx) c1++;
+    if (r1 + 1 < g->ny) r1++;
     L.f = f;
-    gw_track_options_default(&L.topt);
-    L.topt.weak = o->weak;
-    L.topt.weak_threshold = o->weak_threshold;
-    L.topt.stop_mask = stop;
+    L.topt.stop_mask = ws->cmask;
+    L.ttopt = L.topt;
+    L.ttopt.stop_mask = ws->tmask;
     L.refine = o->refine > 0 ? o->refine : 10;
     L.NX = (c1 - c0 + 1) * s + 2;
     L.NY = (r1 - r0 + 1) * s + 2;
@@ -405,34 +838,12 @@ static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture
     for (int J = 0; J < L.NY; J++)
         L.ys[J] = J == 0 ? ys : J == L.NY - 1 ? gw_grid_ytop(g) - r0 * g->dy
                 : ys + (J - 0.5) * g->dy / s;
-    long ncap = 0, nweak = 0;
-    cz->min_retained = 1.0;
-    for (int J = 0; J < L.NY; J++)
-        for (int I = 0; I < L.NX; I++) {
-            size_t n = (size_t)J * L.NX + I;
-            L.time[n] = HUGE_VAL;
-            if (I == 0 || J == 0 || I == L.NX - 1 || J == L.NY - 1)
-                continue;
-            int col = c0 + (I - 1) / s, row = r1 - (J - 1) / s;
-            if (!cand[(size_t)row * g->nx + col])
-                continue;
-            gw_track_result r = {0};
-            if (gw_track(f, L.xs[I], L.ys[J], &L.topt, &r, err) != 0)
-                goto done;
-            cz->seeds++;
-            cz->ends[r.end]++;
-            if (r.end == GW_END_STOP_CELL) {
-                L.cap[n] = 1;
-                L.time[n] = r.time;
-                ncap++;
-                if (r.weak_passed) {
-                    nweak++;
-                    if (r.retained < cz->min_retained)
-                        cz->min_retained = r.retained;
-                }
-            }
-        }
-    cz->weak_pass_share = ncap ? (double)nweak / ncap : 0.0;
+    seeding sd = {.L = &L, .g = g, .ws = ws, .cz = cz, .s = s, .c0 = c0, .r1 = r1};
+    if (seed_lattice(&sd, err) != 0)
+        goto done;
+    long ncap = sd.ncap;
+    double npass = sd.npass;
+    cz->weak_pass_share = ncap ? npass / (double)ncap : 0.0;
     if (trace_zone(&L, HUGE_VAL, &cz->capture, err) != 0)
         goto done;
     cz->ttz = calloc((size_t)(o->ntimes > 0 ? o->ntimes : 1), sizeof *cz->ttz);
@@ -440,6 +851,9 @@ static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture
         gw_fail(err, "out of memory for travel-time zones");
         goto done;
     }
+    if (o->ntimes > 0 &&
+        node_times(&L, ws->cls, g, s, c0, r0, c1, r1, times[o->ntimes - 1], err) != 0)
+        goto done;
     for (int i = 0; i < o->ntimes; i++) {
         if (trace_zone(&L, times[i], &cz->ttz[i], err) != 0)
             goto done;
@@ -447,8 +861,6 @@ static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture
     }
     rc = 0;
 done:
-    free(stop);
-    free(cand);
     free(L.xs);
     free(L.ys);
     free(L.cap);
@@ -477,19 +889,18 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
     size_t nc = gw_grid_ncells(g);
     out->nfeatures = p->nfeatures;
     const double *gin = f->src, *gout = f->sink;
-    double *fout = malloc(nc * sizeof *fout), *w = malloc(nc * sizeof *w);
-    long *order = malloc(nc * sizeof *order);
     double *times = malloc((size_t)(opt->ntimes > 0 ? opt->ntimes : 1) * sizeof *times);
-    long norder = 0, ncycle = 0;
+    workspace ws;
     int rc = -1;
-    if (!fout || !w || !order || !times) {
+    if (workspace_init(&ws, nc) != 0 || !times) {
         gw_fail(err, "out of memory for capture zones");
         goto done;
     }
+    double *fout = ws.fout, *w = ws.w;
     for (int i = 0; i < opt->ntimes; i++)
         times[i] = opt->times[i];
     qsort(times, (size_t)opt->ntimes, sizeof *times, cmp_double);
-    if (flow_order(f, order, &norder, &ncycle, err) != 0)
+    if (flow_order(f, ws.order, &ws.norder, &ws.ncycle, err) != 0)
         goto done;
     for (int ft = 0; ft < p->nfeatures; ft++) {
         if (p->features[ft].type != GW_FEAT_WELL)
@@ -516,7 +927,7 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
             goto done;
         }
         feature_out(f, ft, fout, nc);
-        share_from_order(f, order, norder, ncycle, gout, fout, w);
+        share_from_order(f, ws.order, ws.norder, ws.ncycle, gout, fout, w);
         /* Source split: each feature's inflow times the share reaching the well. */
         double area = g->dx * g->dy;
         for (size_t k = 0; k < nc; k++)
@@ -541,7 +952,7 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
             }
         }
         cz->well_cell_share = thru > 0.0 ? (take < thru ? take / thru : 1.0) : 1.0;
-        if (one_well(p, f, opt, w, fout, times, cz, err) != 0) {
+        if (one_well(p, f, opt, &ws, times, cz, err) != 0) {
             gw_fail_prefix(err, "capture zone of well '%s': ", p->features[ft].name);
             goto done;
         }
@@ -550,9 +961,7 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
 done:
     if (rc != 0)
         gw_capture_free(out);
-    free(fout);
-    free(w);
-    free(order);
+    workspace_free(&ws);
     free(times);
     return rc;
 }

@@ -1,14 +1,23 @@
 /* Capture zones (steady state, unlimited time) and travel-time zones of
  * pumping wells, with the split of each well's water by source.
  *
- * Zones: seeds on a lattice of s x s points per cell are tracked forward
- * (Pollock, see track.h) around every cell whose water can reach the well;
- * a seed is inside when its path ends in a cell the well takes water from
- * (those cells always stop a path: a conservative choice for weak well
- * cells, whose share is reported).  The boundary between inside and
- * outside seeds is located by bisection along each lattice edge and traced
- * into closed rings (marching squares), so polygons are refined well below
- * the cell size.
+ * Zones: seeds on a lattice of s x s points per cell.  A "reach share"
+ * on the cell graph (the water of each cell that the tracking rules send to
+ * the well: 1 in the well's cells, 0 at sinks that stop a path, else the
+ * flux-weighted mean over the outflow faces) decides most seeds at once:
+ * in cells whose share is 1 (to 1e-9) every path ends in the well, in cells
+ * whose share is 0 none does.  Only seeds in the band between are tracked
+ * forward (Pollock, see track.h), and each path stops as soon as it enters a
+ * decided cell, so tracking costs (band seeds) x (cells crossed in the
+ * band), not (zone seeds) x (path length).  A seed is inside when its path
+ * ends in a cell the well takes water from (those cells always stop a
+ * path: a conservative choice for weak well cells, whose share is
+ * reported).  The boundary between inside and outside seeds is located by
+ * bisection along each lattice edge and traced into closed rings (marching
+ * squares), so polygons are refined well below the cell size.  Travel
+ * times are tracked only for captured seeds near the well: outwards from
+ * the well's cells while some seed of a cell arrives within the longest
+ * requested time, each path cut off at that time.
  *
  * Source split: a flux-weighted partition on the cell-face fluxes.  w[k],
  * the share of the water passing through cell k that ends in the well, is
@@ -57,8 +66,11 @@ typedef struct {
      * captured path kept after passing them (see gw_track_result.retained). */
     double weak_pass_share;
     double min_retained;
-    long seeds;                     /* seeds tracked */
-    long ends[GW_END_MAX_STEPS + 1];/* seeds by end reason */
+    long seeds;                     /* seeds tracked for the capture zone */
+    /* Seeds tracked, by end reason; "stop_cell" includes paths stopped on
+     * entering a cell decided by the reach share. */
+    long ends[GW_END_MAX_STEPS + 1];
+    long classified;                /* seeds decided by the reach share alone */
 } gw_capture_zone;
 
 typedef struct {
@@ -77,6 +89,11 @@ typedef struct {
 } gw_capture_options;
 
 void gw_capture_options_default(gw_capture_options *o);
+
+/* Ring structure of a zone: for a hole (area < 0), the index of the
+ * smallest outer ring that contains it; -1 for an outer ring or a hole
+ * found in none.  A zone is then the outer rings, each minus its holes. */
+int gw_capzone_parent(const gw_capzone *z, int ring);
 
 /* Capture zones of every pumping well feature (wells with rate > 0), from
  * the flow field of p's solution. */

@@ -183,7 +183,23 @@ fail:
     return NULL;
 }
 
+/* One pass over the connected active areas.  A link anchors its cell when
+ * its conductance is positive and, with link_on given, it is head-dependent
+ * in that state (a dry drain or a perched stream does not hold a head). */
+static int check_areas(const gw_problem *p, const unsigned char *link_on, int iteration, gw_error *err);
+
 int gw_problem_check_bounded(const gw_problem *p, gw_error *err)
+{
+    return check_areas(p, NULL, 0, err);
+}
+
+int gw_problem_check_bounded_state(const gw_problem *p, const unsigned char *link_on, int iteration,
+                                   gw_error *err)
+{
+    return check_areas(p, link_on, iteration, err);
+}
+
+static int check_areas(const gw_problem *p, const unsigned char *link_on, int iteration, gw_error *err)
 {
     const gw_grid *g = &p->grid;
     size_t n = gw_grid_ncells(g);
@@ -197,7 +213,7 @@ int gw_problem_check_bounded(const gw_problem *p, gw_error *err)
         return gw_fail(err, "out of memory checking the boundary conditions");
     }
     for (int i = 0; i < p->nlinks; i++)
-        if (p->links[i].cond > 0.0)
+        if (p->links[i].cond > 0.0 && (!link_on || link_on[i]))
             anchor[p->links[i].cell] = 1;
     for (size_t k = 0; k < n; k++)
         comp[k] = -1;
@@ -236,7 +252,17 @@ int gw_problem_check_bounded(const gw_problem *p, gw_error *err)
                 }
             }
         }
-        if (!bounded)
+        if (!bounded && link_on)
+            rc = gw_fail(err,
+                         "after iteration %d, an active area of %ld cells (columns %d-%d, rows %d-%d; x %.6g to %.6g, "
+                         "y %.6g to %.6g) has no head-controlling boundary left: its drains have fallen dry and its "
+                         "streams are perched above the water table (head below the bed bottom), so the conductance "
+                         "matrix is singular and there is no steady solution; less pumping, more recharge, or a "
+                         "fixed head, leakage or stream that stays connected would give one",
+                         iteration, count, cmin + 1, cmax + 1, rmin + 1, rmax + 1, g->x0 + cmin * g->dx,
+                         g->x0 + (cmax + 1) * g->dx, gw_grid_ytop(g) - (rmax + 1) * g->dy,
+                         gw_grid_ytop(g) - rmin * g->dy);
+        else if (!bounded)
             rc = gw_fail(err,
                          "an active area of %ld cells (columns %d-%d, rows %d-%d; x %.6g to %.6g, y %.6g to %.6g) "
                          "touches no fixed head, stream, drain or leakage, so it has no steady solution: "

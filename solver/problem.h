@@ -95,5 +95,10 @@ gw_problem *gw_problem_clone(const gw_problem *p, gw_error *err);
  * leakage link.  On failure the message gives the group's extent in map
  * coordinates. */
 int gw_problem_check_bounded(const gw_problem *p, gw_error *err);
+/* The same for one state of the links during the iterations (link_on[i] = 1
+ * when link i is head-dependent): fails, naming the area and the iteration,
+ * when drains gone dry or perched streams leave an area without a boundary. */
+int gw_problem_check_bounded_state(const gw_problem *p, const unsigned char *link_on, int iteration,
+                                   gw_error *err);
 
 #endif

@@ -107,7 +107,7 @@ static int line_push(gw_section_line *l, int *cap, double x, double z)
 /* Trace from (x, z) in non-fixed active cell k.  *end_cell: fixed cell the
  * water enters, or the cell where it stops (a sink), or -1 (stalled). */
 static int trace_from(const gw_problem *p, const gw_solution *sol, double x, double z, int k,
-                      gw_section_line *line, int *end_cell, double *time, double *zmin,
+                      double dir, gw_section_line *line, int *end_cell, double *time, double *zmin,
                       gw_error *err)
 {
     const gw_grid *g = &p->grid;
@@ -128,8 +128,10 @@ static int trace_from(const gw_problem *p, const gw_solution *sol, double x, dou
         double n = p->porosity[k] > 0.0 ? p->porosity[k] : 1.0;
         double xi = fmin(fmax(x - (g->x0 + c * g->dx), 0.0), g->dx);
         double eta = fmin(fmax((ytop - r * g->dy) - z, 0.0), g->dy);   /* down from the top face */
-        double qw = c > 0 ? flux_e(sol, (size_t)k - 1) : 0.0, qe = flux_e(sol, (size_t)k);
-        double qn = r > 0 ? flux_s(sol, g, (size_t)k - (size_t)g->nx) : 0.0, qs = flux_s(sol, g, (size_t)k);
+        /* dir -1 traces backward, to where the water came from */
+        double qw = c > 0 ? dir * flux_e(sol, (size_t)k - 1) : 0.0, qe = dir * flux_e(sol, (size_t)k);
+        double qn = r > 0 ? dir * flux_s(sol, g, (size_t)k - (size_t)g->nx) : 0.0;
+        double qs = dir * flux_s(sol, g, (size_t)k);
         double vx1 = qw / (g->dy * n), vx2 = qe / (g->dy * n);
         double vd1 = qn / (g->dx * n), vd2 = qs / (g->dx * n);
         double tx = HUGE_VAL, td = HUGE_VAL;
@@ -145,8 +147,10 @@ static int trace_from(const gw_problem *p, const gw_solution *sol, double x, dou
                 if (p->links[i].cell == k)
                     *end_cell = k;
             for (int i = 0; i < p->nwells; i++)
-                if (p->wells[i].cell == k && p->wells[i].rate > 0)
+                if (p->wells[i].cell == k && dir * p->wells[i].rate > 0)
                     *end_cell = k;
+            if (dir < 0 && p->recharge[k] > 0.0)
+                *end_cell = k;
             return 0;
         }
         double t = fmin(tx, td);
@@ -171,6 +175,16 @@ static int trace_from(const gw_problem *p, const gw_solution *sol, double x, dou
             *end_cell = m;
             return 0;
         }
+        /* A weak sink on the top (a seepage face, drain or gaining stream
+         * in the topmost active cell) ends the streamline: water reaching
+         * it leaves there, and passing on would follow the top row to
+         * nowhere.  Only top cells are checked, which keeps this cheap. */
+        if (dir > 0 && (m < g->nx || !p->active[m - g->nx]))
+            for (int i = 0; i < p->nlinks; i++)
+                if (p->links[i].cell == m && sol->head[m] > p->links[i].ref) {
+                    *end_cell = m;
+                    return 0;
+                }
         k = m;
     }
     return 0;   /* step limit: stalled */
@@ -189,7 +203,7 @@ int gw_section_trace(const gw_problem *p, const gw_solution *sol, double x, doub
     int k = r * p->grid.nx + c;
     if (!p->active[k] || p->fixed_feature[k] >= 0)
         return gw_fail(err, "streamline start (%g, %g) is not in an active, non-fixed cell", x, z);
-    return trace_from(p, sol, x, z, k, line, end_cell, time, zmin, err);
+    return trace_from(p, sol, x, z, k, 1.0, line, end_cell, time, zmin, err);
 }
 
 /* ---- Top boundary, hinge points, areas --------------------------------- */
@@ -213,6 +227,62 @@ static double wt_at(const gw_section *s, double x)
             return s->top[i - 1].z + f * (s->top[i].z - s->top[i - 1].z);
         }
     return s->top[s->ntop - 1].z;
+}
+
+/* A water table that slopes across the rows is a staircase of cells: flat
+ * treads (fixed cells with a non-fixed cell below) and risers (the side of
+ * a fixed cell one step lower, facing a non-fixed cell below the tread).
+ * The flow through a riser is the horizontal flow below the water table
+ * crossing its slope (q . n = qz - qx dz/dx along the line), which the
+ * continuum spreads along the slope but the grid concentrates at the
+ * step, giving cell-sized discharge spots and false hinge points.  So the
+ * riser flow is moved, in equal parts, to the columns of the tread it lies
+ * under.  The solution and the totals are unchanged; a flat top has no
+ * risers. */
+static void spread_risers(const gw_problem *p, const gw_solution *sol, const int *toprow, double *flux)
+{
+    const gw_grid *g = &p->grid;
+    int nx = g->nx;
+    /* bottom row of each column's crust: the fixed cells from its top down */
+    int *cb = malloc((size_t)nx * sizeof *cb);
+    if (!cb)
+        return;   /* analysis goes on with the unspread fluxes */
+    for (int c = 0; c < nx; c++) {
+        cb[c] = toprow[c];
+        while (cb[c] >= 0 && cb[c] + 1 < g->ny) {
+            size_t k = (size_t)(cb[c] + 1) * (size_t)nx + (size_t)c;
+            if (!p->active[k] || p->fixed_feature[k] < 0)
+                break;
+            cb[c]++;
+        }
+    }
+    for (int c = 0; c < nx; c++) {
+        int thick = cb[c] - toprow[c] + 1;
+        if (toprow[c] < 0 || thick > 8)
+            continue;   /* a fixed side or block, not a water-table crust */
+        for (int side = -1; side <= 1; side += 2) {
+            int nc = c + side;
+            if (nc < 0 || nc >= nx || toprow[nc] < 0)
+                continue;
+            int feat = p->fixed_feature[(size_t)cb[nc] * (size_t)nx + (size_t)nc];
+            for (int r = cb[nc] + 1; r <= cb[c] && r - cb[nc] <= thick; r++) {
+                size_t k = (size_t)r * (size_t)nx + (size_t)c, m = k + (size_t)(long)side;
+                if (p->fixed_feature[k] != feat || !p->active[m] || p->fixed_feature[m] >= 0)
+                    continue;
+                /* flow from fixed cell k into the aquifer through the riser */
+                double q = side > 0 ? flux_e(sol, k) : -flux_e(sol, m);
+                int j = nc, n = 0;
+                while (j >= 0 && j < nx && toprow[j] == toprow[nc]) {
+                    n++;
+                    j += side;
+                }
+                flux[c] -= q;
+                for (j = nc; j >= 0 && j < nx && toprow[j] == toprow[nc]; j += side)
+                    flux[j] += q / n;
+            }
+        }
+    }
+    free(cb);
 }
 
 static int build_top(const gw_problem *p, const gw_solution *sol, const gw_budget *b,
@@ -250,6 +320,7 @@ static int build_top(const gw_problem *p, const gw_solution *sol, const gw_budge
         if (toprow[c] < 0 || r < toprow[c])
             toprow[c] = r;
     }
+    spread_risers(p, sol, toprow, flux);
     int nt = 0;
     for (int c = 0; c < nx; c++)
         nt += toprow[c] >= 0;
@@ -389,6 +460,41 @@ static void seed_point(const ctx *c, double s, int *fi, double *x, double *z)
     *z = sf->za + f * (sf->zb - sf->za);
 }
 
+/* Area (index) where a streamline ends: end is the fixed or link cell it
+ * reached (or, traced backward, the source cell); -1 when it stalled or
+ * ended at a well.  want_recharge says which kind of area the end must be
+ * (1 for backward traces).  Water reaching the water table inside an area
+ * of the other kind (at its edge, or at a riser of a stepped water table)
+ * would, in the continuum, go on just below the water table the way it was
+ * heading: it belongs to the next area of the right kind that way (the
+ * nearest one when it did not move along x). */
+static int end_area(const gw_problem *p, const gw_section *s, int end, const gw_section_line *path,
+                    int want_recharge)
+{
+    if (end < 0 || s->nareas == 0)
+        return -1;
+    int ok = p->fixed_feature[end] >= 0 || (want_recharge && p->recharge[end] > 0.0);
+    for (int i = 0; i < p->nlinks && !ok; i++)
+        ok = p->links[i].cell == end;
+    if (!ok)
+        return -1;
+    double xe = gw_grid_xc(&p->grid, end % p->grid.nx);
+    int a = area_of_x(s, xe);
+    if (s->area[a].recharge == want_recharge)
+        return a;
+    int lo = a - 1, hi = a + 1;
+    double dl = lo >= 0 ? xe - s->area[lo].x1 : HUGE_VAL;
+    double dh = hi < s->nareas ? s->area[hi].x0 - xe : HUGE_VAL;
+    double dx = path && path->n > 1 ? path->xz[2 * (path->n - 1)] - path->xz[0] : 0.0;
+    if (dx > 0.0 && hi < s->nareas)
+        a = hi;
+    else if (dx < 0.0 && lo >= 0)
+        a = lo;
+    else
+        a = dl <= dh ? lo : hi;
+    return a >= 0 && a < s->nareas ? a : -1;
+}
+
 /* Trace the seed at s; fills smp and (if line) the path. */
 static int run_seed(ctx *c, double s, sample *smp, gw_section_line *line, gw_error *err)
 {
@@ -396,7 +502,7 @@ static int run_seed(ctx *c, double s, sample *smp, gw_section_line *line, gw_err
     double x, z, t, zmin;
     seed_point(c, s, &fi, &x, &z);
     gw_section_line tmp = {0};
-    if (trace_from(c->p, c->sol, x, z, c->face[fi].cell, &tmp, &end, &t, &zmin, err))
+    if (trace_from(c->p, c->sol, x, z, c->face[fi].cell, 1.0, &tmp, &end, &t, &zmin, err))
         return -1;
     c->sec->ntraced++;
     smp->s = s;
@@ -409,27 +515,7 @@ static int run_seed(ctx *c, double s, sample *smp, gw_section_line *line, gw_err
             smp->xlow = tmp.xz[2 * i];
             break;
         }
-    smp->label = -1;
-    if (end >= 0) {
-        int isfixed = c->p->fixed_feature[end] >= 0, islink = 0;
-        for (int i = 0; i < c->p->nlinks && !islink; i++)
-            islink = c->p->links[i].cell == end;
-        if (isfixed || islink) {
-            double xe = gw_grid_xc(&c->p->grid, end % c->p->grid.nx);
-            int a = area_of_x(c->sec, xe);
-            /* Water entering a fixed cell at the edge of a recharge area
-             * belongs to the nearest discharge area. */
-            if (c->sec->area[a].recharge) {
-                int lo = a - 1, hi = a + 1;
-                double dl = lo >= 0 ? xe - c->sec->area[lo].x1 : HUGE_VAL;
-                double dh = hi < c->sec->nareas ? c->sec->area[hi].x0 - xe : HUGE_VAL;
-                a = dl <= dh ? lo : hi;
-                if (a < 0 || a >= c->sec->nareas)
-                    a = -1;
-            }
-            smp->label = a;
-        }
-    }
+    smp->label = end_area(c->p, c->sec, end, &tmp, 0);
     if (line)
         *line = tmp;
     else
@@ -536,6 +622,20 @@ static int add_divide(gw_section *s, gw_section_line *l, int *cap, gw_error *err
     }
     s->divide[s->ndivides++] = *l;
     return 0;
+}
+
+/* Toth (1963): see section.h. */
+static gw_system_kind classify(const gw_section *s, int recharge_area, int discharge_area)
+{
+    int hi_area = 0, lo_area = 0;
+    double zhi = -HUGE_VAL, zlo = HUGE_VAL;
+    for (int t = 0; t < s->ntop; t++) {
+        if (s->top[t].z > zhi) { zhi = s->top[t].z; hi_area = area_of_x(s, s->top[t].x); }
+        if (s->top[t].z < zlo) { zlo = s->top[t].z; lo_area = area_of_x(s, s->top[t].x); }
+    }
+    if (recharge_area == hi_area && discharge_area == lo_area)
+        return GW_SYSTEM_REGIONAL;
+    return abs(recharge_area - discharge_area) == 1 ? GW_SYSTEM_LOCAL : GW_SYSTEM_INTERMEDIATE;
 }
 
 static int find_systems(ctx *c, const gw_section_options *o, gw_error *err)
@@ -652,22 +752,8 @@ static int find_systems(ctx *c, const gw_section_options *o, gw_error *err)
         }
         i = j + 1;
     }
-    /* Classify (Toth 1963). */
-    int hi_area = 0, lo_area = 0;
-    double zhi = -HUGE_VAL, zlo = HUGE_VAL;
-    for (int t = 0; t < s->ntop; t++) {
-        if (s->top[t].z > zhi) { zhi = s->top[t].z; hi_area = area_of_x(s, s->top[t].x); }
-        if (s->top[t].z < zlo) { zlo = s->top[t].z; lo_area = area_of_x(s, s->top[t].x); }
-    }
-    for (int k = 0; k < s->nsystems; k++) {
-        gw_flow_system *f = &sys[k];
-        if (f->recharge_area == hi_area && f->discharge_area == lo_area)
-            f->kind = GW_SYSTEM_REGIONAL;
-        else if (abs(f->recharge_area - f->discharge_area) == 1)
-            f->kind = GW_SYSTEM_LOCAL;
-        else
-            f->kind = GW_SYSTEM_INTERMEDIATE;
-    }
+    for (int k = 0; k < s->nsystems; k++)
+        sys[k].kind = classify(s, sys[k].recharge_area, sys[k].discharge_area);
     /* order by where the recharge starts */
     for (int a = 1; a < s->nsystems; a++)
         for (int b2 = a; b2 > 0 && sys[b2].x_from < sys[b2 - 1].x_from; b2--) {
@@ -708,4 +794,80 @@ int gw_section_analyse(const gw_problem *p, const gw_solution *sol, const gw_bud
     if (rc)
         gw_section_free(s);
     return rc;
+}
+
+int gw_section_cell_kinds(const gw_problem *p, const gw_solution *sol, const gw_section *s, int stride,
+                          int *kind, gw_error *err)
+{
+    const gw_grid *g = &p->grid;
+    size_t nc = gw_grid_ncells(g);
+    for (size_t k = 0; k < nc; k++)
+        kind[k] = -1;
+    if (p->type != GW_SECTION || s->nareas == 0)
+        return 0;
+    if (stride < 1)
+        stride = 1;
+    for (int r0 = 0; r0 < g->ny; r0 += stride)
+        for (int c0 = 0; c0 < g->nx; c0 += stride) {
+            /* trace from the centre cell of the block, fill the block */
+            int r = r0 + stride / 2 < g->ny ? r0 + stride / 2 : g->ny - 1;
+            int c = c0 + stride / 2 < g->nx ? c0 + stride / 2 : g->nx - 1;
+            int k = r * g->nx + c;
+            if (!p->active[k] || p->fixed_feature[k] >= 0)
+                continue;
+            gw_section_line fw = { 0 }, bw = { 0 };
+            int ef, eb;
+            double t, zmin, x = gw_grid_xc(g, c), z = gw_grid_yc(g, r);
+            if (trace_from(p, sol, x, z, k, 1.0, &fw, &ef, &t, &zmin, err) ||
+                trace_from(p, sol, x, z, k, -1.0, &bw, &eb, &t, &zmin, err)) {
+                gw_section_line_free(&fw);
+                return -1;
+            }
+            int da = end_area(p, s, ef, &fw, 0), ra = end_area(p, s, eb, &bw, 1);
+            gw_section_line_free(&fw);
+            gw_section_line_free(&bw);
+            int kd = da >= 0 && ra >= 0 ? (int)classify(s, ra, da) : -1;
+            for (int rr = r0; rr < r0 + stride && rr < g->ny; rr++)
+                for (int cc = c0; cc < c0 + stride && cc < g->nx; cc++) {
+                    size_t m = (size_t)rr * (size_t)g->nx + (size_t)cc;
+                    if (p->active[m] && p->fixed_feature[m] < 0)
+                        kind[m] = kd;
+                }
+        }
+    return 0;
+}
+
+int gw_section_flow_seeds(const gw_problem *p, const gw_solution *sol, const gw_section *s, int n,
+                          double *xz, int *nout, gw_error *err)
+{
+    *nout = 0;
+    if (s->nareas == 0 || n <= 0)
+        return 0;
+    ctx c = { .p = p, .sol = sol, .sec = (gw_section *)s };   /* collect_faces only reads it */
+    if (collect_faces(&c, err)) {
+        free(c.face);
+        return -1;
+    }
+    const gw_grid *g = &p->grid;
+    double total = 0.0, acc = 0.0;
+    for (int i = 0; i < c.nfaces; i++)
+        total += c.face[i].flux;
+    for (int i = 0, j = 0; i < c.nfaces && j < n && total > 0.0; i++) {
+        double q = c.face[i].flux;
+        while (j < n && (j + 0.5) * total / n <= acc + q) {
+            double f = ((j + 0.5) * total / n - acc) / q;
+            int fi, k = c.face[i].cell;
+            double x, z;
+            seed_point(&c, i + f, &fi, &x, &z);
+            /* nudge off the face into the cell the water enters */
+            double xc = gw_grid_xc(g, k % g->nx), zc = gw_grid_yc(g, k / g->nx);
+            xz[2 * *nout] = x + 1e-6 * (xc - x);
+            xz[2 * *nout + 1] = z + 1e-6 * (zc - z);
+            (*nout)++;
+            j++;
+        }
+        acc += q;
+    }
+    free(c.face);
+    return 0;
 }

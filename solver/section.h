@@ -107,4 +107,19 @@ int gw_section_trace(const gw_problem *p, const gw_solution *sol, double x, doub
 
 void gw_section_line_free(gw_section_line *l);
 
+/* Flow-system kind (gw_system_kind) of every active, non-fixed cell of an
+ * analysed section, -1 elsewhere or where the water's origin or end is
+ * not an area of the top (wells, stagnation).  Each cell centre is traced
+ * forward to its discharge area and backward to its recharge area; with
+ * stride > 1 one trace per stride x stride block of cells fills the block
+ * (for large grids).  kind has one entry per cell.  For shading maps. */
+/* Up to n streamline starts (x, z pairs into xz) on the faces where water
+ * enters the aquifer in the recharge areas, spaced so that each carries
+ * 1/n of that inflow: flow lines drawn from them are equal-flow tubes. */
+int gw_section_flow_seeds(const gw_problem *p, const gw_solution *sol, const gw_section *s, int n,
+                          double *xz, int *nout, gw_error *err);
+
+int gw_section_cell_kinds(const gw_problem *p, const gw_solution *sol, const gw_section *s, int stride,
+                          int *kind, gw_error *err);
+
 #endif

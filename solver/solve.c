@@ -350,7 +350,9 @@ static int factorize(gw_solver *s, gw_solution *sol, gw_error *err)
             return gw_fail(err,
                            "the conductance matrix is singular near column %d, row %d (x %.6g, y %.6g): "
                            "this part of the aquifer has no head-controlling boundary in the current state "
-                           "(for instance only drains that have fallen dry, or streams perched above the water table)",
+                           "(for instance only drains that have fallen dry, or streams perched above the water table), "
+                           "or conductivities, thicknesses or conductances there differ from their neighbours' by "
+                           "so many orders of magnitude that the system cannot be solved in double precision",
                            k % s->grid.nx + 1, k / s->grid.nx + 1, gw_grid_xc(&s->grid, k % s->grid.nx),
                            gw_grid_yc(&s->grid, k / s->grid.nx));
         }
@@ -497,6 +499,13 @@ int gw_solver_run(gw_solver *s, const gw_problem *p, const double *start, gw_sol
                              hist);
                 break;
             }
+        }
+        /* Drains that fell dry and perched streams may leave an area with
+         * no head-controlling boundary; the factorization of such a
+         * semi-definite matrix need not fail visibly, so check the links. */
+        if (changed && (it > 0 || start) && gw_problem_check_bounded_state(p, on, it, err)) {
+            rc = -1;
+            break;
         }
         if (factorize(s, sol, err)) {
             rc = -1;

@@ -145,22 +145,14 @@ void gw_track_velocity(const gw_flowfield *f, double x, double y, double *vx, do
     *vy = ((1.0 - ty) * c.fy1 + ty * c.fy2) / (g->dx * bn);
 }
 
-/* Decide whether a path stops on entering (or starting in) cell k.
- * Returns the end reason or GW_END_NONE; updates the weak-sink record. */
-static gw_track_end check_cell(const gw_flowfield *f, int k, const gw_track_options *o,
-                               double sgn, gw_track_result *r)
+int gw_track_sink_stops(const gw_flowfield *f, int k, const gw_track_options *o, double *frac)
 {
-    if (!usable(f, k))
-        return GW_END_INACTIVE;
-    if (o->stop_mask && o->stop_mask[k]) {
-        r->end_fraction = 1.0;
-        return GW_END_STOP_CELL;
-    }
     double s = o->backward ? f->src[k] : f->sink[k];
     double other = o->backward ? f->sink[k] : f->src[k];
+    *frac = 0.0;
     if (!(s > 0.0))
-        return GW_END_NONE;
-    cell_flux c = face_fluxes(f, k, sgn);
+        return 0;
+    cell_flux c = face_fluxes(f, k, o->backward ? -1.0 : 1.0);
     double qin = 0.0;
     int hasout = 0;
     if (c.fx1 > 0) qin += c.fx1; else if (c.fx1 < 0) hasout = 1;
@@ -168,21 +160,38 @@ static gw_track_end check_cell(const gw_flowfield *f, int k, const gw_track_opti
     if (c.fy1 > 0) qin += c.fy1; else if (c.fy1 < 0) hasout = 1;
     if (c.fy2 < 0) qin -= c.fy2; else if (c.fy2 > 0) hasout = 1;
     double thru = other + qin;
-    double frac = thru > 0.0 ? s / thru : 1.0;
-    if (frac > 1.0)
-        frac = 1.0;
+    double fr = thru > 0.0 ? s / thru : 1.0;
+    *frac = fr > 1.0 ? 1.0 : fr;
     int stop = !hasout;
     switch (o->weak) {
     case GW_WEAK_STOP: stop = 1; break;
     case GW_WEAK_PASS: break;
-    case GW_WEAK_THRESHOLD: stop = stop || frac >= o->weak_threshold; break;
+    case GW_WEAK_THRESHOLD: stop = stop || *frac >= o->weak_threshold; break;
     }
-    if (stop) {
+    return stop;
+}
+
+/* Decide whether a path stops on entering (or starting in) cell k.
+ * Returns the end reason or GW_END_NONE; updates the weak-sink record. */
+static gw_track_end check_cell(const gw_flowfield *f, int k, const gw_track_options *o,
+                               gw_track_result *r)
+{
+    if (!usable(f, k))
+        return GW_END_INACTIVE;
+    if (o->stop_mask && o->stop_mask[k]) {
+        r->end_fraction = 1.0;
+        r->stop_value = o->stop_mask[k];
+        return GW_END_STOP_CELL;
+    }
+    double frac;
+    if (gw_track_sink_stops(f, k, o, &frac)) {
         r->end_fraction = frac;
         return GW_END_SINK;
     }
-    r->weak_passed++;
-    r->retained *= 1.0 - frac;
+    if (frac > 0.0) {
+        r->weak_passed++;
+        r->retained *= 1.0 - frac;
+    }
     return GW_END_NONE;
 }
 
@@ -210,7 +219,7 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
     }
     int k = row * g->nx + col;
     r->cell = k;
-    gw_track_end e = check_cell(f, k, o, sgn, r);
+    gw_track_end e = check_cell(f, k, o, r);
     const double ytop = gw_grid_ytop(g);
     double px = x - (g->x0 + col * g->dx), py = y - (ytop - (row + 1) * g->dy);
     if (px < 0) px = 0;
@@ -224,9 +233,10 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
             break;
         }
         cell_flux c = face_fluxes(f, k, sgn);
-        double bn = f->sat_thick[k] * f->porosity[k];
-        double vx1 = c.fx1 / (g->dy * bn), vx2 = c.fx2 / (g->dy * bn);
-        double vy1 = c.fy1 / (g->dx * bn), vy2 = c.fy2 / (g->dx * bn);
+        double ibn = 1.0 / (f->sat_thick[k] * f->porosity[k]);   /* one division per cell */
+        double ix = ibn / g->dy, iy = ibn / g->dx;
+        double vx1 = c.fx1 * ix, vx2 = c.fx2 * ix;
+        double vy1 = c.fy1 * iy, vy2 = c.fy2 * iy;
         double dirx, diry;
         double tx = exit_time(vx1, vx2, g->dx, px, &dirx);
         double ty = exit_time(vy1, vy2, g->dy, py, &diry);
@@ -246,7 +256,7 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
         if (remain <= t) {
             double nx = advance(vx1, vx2, g->dx, px, remain);
             double ny = advance(vy1, vy2, g->dy, py, remain);
-            r->length += hypot(nx - px, ny - py);
+            r->length += sqrt((nx - px) * (nx - px) + (ny - py) * (ny - py));
             px = nx;
             py = ny;
             r->time += remain;
@@ -258,7 +268,7 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
         int exit_y = ty <= tx * (1.0 + 1e-12);
         double nx = exit_x ? (dirx > 0 ? g->dx : 0.0) : advance(vx1, vx2, g->dx, px, t);
         double ny = exit_y ? (diry > 0 ? g->dy : 0.0) : advance(vy1, vy2, g->dy, py, t);
-        r->length += hypot(nx - px, ny - py);
+        r->length += sqrt((nx - px) * (nx - px) + (ny - py) * (ny - py));
         r->time += t;
         r->steps++;
         int ncol = col + (exit_x ? (int)dirx : 0);
@@ -286,7 +296,7 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
         row = nrow;
         k = nk;
         r->cell = k;
-        e = check_cell(f, k, o, sgn, r);
+        e = check_cell(f, k, o, r);
     }
     r->end = e;
     r->x = g->x0 + col * g->dx + px;

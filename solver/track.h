@@ -47,7 +47,9 @@ typedef struct {
     gw_weak_rule weak;            /* default GW_WEAK_THRESHOLD */
     double weak_threshold;        /* default 0.5 (common practice: majority rule) */
     /* Optional, borrowed, length ncells: nonzero cells always stop the path
-     * on entry (e.g. the cells of the well whose capture zone is wanted). */
+     * on entry (e.g. the cells of the well whose capture zone is wanted);
+     * the value found there is returned in gw_track_result.stop_value, so
+     * callers can also mark cells whose outcome is already known. */
     const unsigned char *stop_mask;
     int record_path;              /* keep the vertices of the path */
 } gw_track_options;
@@ -65,6 +67,7 @@ typedef struct {
     /* Share of the cell's throughput taken by the sink (source when
      * backward) of the end cell; 1 for a strong sink, 0 when not a sink. */
     double end_fraction;
+    int stop_value;       /* GW_END_STOP_CELL: stop_mask value of the end cell */
     /* Weak sinks passed through: their number, and the product of
      * (1 - sink share) over them, i.e. the share of the water at the start
      * that is still on this path at its end (fully mixed cells assumed). */
@@ -82,6 +85,12 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
              gw_track_result *r, gw_error *err);
 
 void gw_track_result_free(gw_track_result *r);
+
+/* Whether a path stops at the sink (forward; source when backward) of
+ * cell k under o's weak-sink rule, ignoring o->stop_mask; *frac gets the
+ * share of the cell's throughput that the sink takes (0 without one).
+ * The same test gw_track applies on entering a cell. */
+int gw_track_sink_stops(const gw_flowfield *f, int k, const gw_track_options *o, double *frac);
 
 /* Seepage velocity (vx east, vy north) at map point (x, y), L/T, from the
  * same linear interpolation the tracking uses; 0/0 outside active cells. */

@@ -18,7 +18,7 @@ must
 
 Environment: GW_COMMAND (the built gwdivide), GW_TEST_DATA (tests/data),
 GW_SOURCE_DIR (for demo/).  For a longer campaign: GW_FUZZ_COUNT (mutants,
-default 400), GW_FUZZ_SEED (default 20240611), GW_FUZZ_SECONDS (stop
+default 300), GW_FUZZ_SEED (default 20240611), GW_FUZZ_SECONDS (stop
 starting new mutants after this many seconds, default 70),
 GW_FUZZ_KEEP=DIR (copy every failing mutant there).
 """
@@ -39,7 +39,7 @@ if not GW:
 HERE = os.path.dirname(os.path.abspath(__file__))
 DATA = os.environ.get("GW_TEST_DATA", os.path.join(HERE, "data"))
 SRC = os.environ.get("GW_SOURCE_DIR", os.path.dirname(HERE))
-COUNT = int(os.environ.get("GW_FUZZ_COUNT", "400"))
+COUNT = int(os.environ.get("GW_FUZZ_COUNT", "300"))
 SEED = int(os.environ.get("GW_FUZZ_SEED", "20240611"))
 SECONDS = float(os.environ.get("GW_FUZZ_SECONDS", "70"))
 KEEP = os.environ.get("GW_FUZZ_KEEP")
@@ -248,6 +248,7 @@ def snapshot(path):
 def invoke(args):
     env = dict(os.environ)
     env.setdefault("ASAN_OPTIONS", "detect_leaks=1")
+    env.setdefault("LSAN_OPTIONS", "suppressions=" + os.path.join(HERE, "lsan.supp"))
     try:
         p = subprocess.run([GW] + args, capture_output=True, timeout=TIMEOUT, env=env)
         return p.returncode, p.stdout.decode("utf-8", "replace"), p.stderr.decode("utf-8", "replace")

@@ -120,12 +120,118 @@ static void test_along_line(void **state)
     gw_labels_free(&s);
 }
 
+/* Distance from point (x, y) to the rotated rectangle b (0 inside). */
+static double point_box_dist(const gw_label_box *b, double x, double y)
+{
+    double c = cos(b->angle), s = sin(b->angle);
+    double u = (x - b->cx) * c + (y - b->cy) * s, v = -(x - b->cx) * s + (y - b->cy) * c;
+    double du = fmax(fabs(u) - 0.5 * b->w, 0), dv = fmax(fabs(v) - 0.5 * b->h, 0);
+    return hypot(du, dv);
+}
+
+/* Least distance from a box to a polyline, by sampling the line every
+ * 0.25 px: independent of the clipping test in io/map_labels.c. */
+static double line_box_dist(const gw_label_box *b, const double *xy, int n)
+{
+    double best = HUGE_VAL;
+    for (int i = 0; i + 1 < n; i++) {
+        double ax = xy[2 * i], ay = xy[2 * i + 1], dx = xy[2 * i + 2] - ax, dy = xy[2 * i + 3] - ay;
+        double L = hypot(dx, dy);
+        /* Segments far from the box need no sampling (saves time only). */
+        double t0 = L > 0 ? ((b->cx - ax) * dx + (b->cy - ay) * dy) / (L * L) : 0;
+        t0 = t0 < 0 ? 0 : t0 > 1 ? 1 : t0;
+        if (hypot(ax + t0 * dx - b->cx, ay + t0 * dy - b->cy) > 0.5 * hypot(b->w, b->h) + 50) continue;
+        int m = (int)(L / 0.25) + 1;
+        for (int j = 0; j <= m; j++) {
+            double t = (double)j / m;
+            double d = point_box_dist(b, xy[2 * i] + t * (xy[2 * i + 2] - xy[2 * i]),
+                                      xy[2 * i + 1] + t * (xy[2 * i + 3] - xy[2 * i + 1]));
+            if (d < best) best = d;
+        }
+    }
+    return best;
+}
+
+/* Feature lines reserved as obstacles: no label accepted afterwards, by
+ * gw_labels_try or along other lines, comes within the clearance. */
+static void test_labels_keep_off_feature_lines(void **state)
+{
+    (void)state;
+    gw_label_set s;
+    gw_labels_init(&s, 0, 0, 1000, 700, 2);
+    /* Two winding "streams" and a straight "drain". */
+    double s1[14], s2[12], dr[4] = {300, 350, 700, 352};
+    for (int i = 0; i < 7; i++) { s1[2 * i] = 150 + 30 * sin(i * 1.3); s1[2 * i + 1] = i * 700.0 / 6; }
+    for (int i = 0; i < 6; i++) { s2[2 * i] = 820 + 45 * cos(i * 0.9); s2[2 * i + 1] = i * 700.0 / 5; }
+    const double clear = 7;
+    assert_int_equal(gw_labels_reserve_line(&s, s1, 7, 0, clear, 0), 0);
+    assert_int_equal(gw_labels_reserve_line(&s, s2, 6, 0, clear, 1), 0);
+    assert_int_equal(gw_labels_reserve_line(&s, dr, 2, 0, 4, 2), 0);
+    srand(777);
+    int accepted = 0, refused_near_line = 0;
+    for (int i = 0; i < 4000; i++) {
+        gw_label_box b = {rand() % 1000, rand() % 700, 20 + rand() % 60, 10 + rand() % 6,
+                          (rand() % 360) * PI / 180.0};
+        int free_of_lines = line_box_dist(&b, s1, 7) >= clear && line_box_dist(&b, s2, 6) >= clear &&
+                            line_box_dist(&b, dr, 2) >= 4;
+        int r = gw_labels_try(&s, &b);
+        accepted += r;
+        if (!free_of_lines) {
+            assert_int_equal(r, 0);
+            refused_near_line++;
+        }
+    }
+    /* "Contour" lines crossing the streams: labels go along them but
+     * never onto a stream. */
+    for (int k = 0; k < 12; k++) {
+        double cl[4] = {0, 30 + 55 * k, 1000, 60 + 50 * k};
+        gw_label_box out[10];
+        int n = gw_labels_along_line(&s, cl, 2, 50, 12, 120, out, 10);
+        assert_true(n >= 0);
+        accepted += n;
+    }
+    assert_true(accepted > 80 && refused_near_line > 100);   /* not vacuous */
+    for (int i = 0; i < s.n; i++) {
+        assert_true(line_box_dist(&s.box[i], s1, 7) >= clear - 1e-9);
+        assert_true(line_box_dist(&s.box[i], s2, 6) >= clear - 1e-9);
+        assert_true(line_box_dist(&s.box[i], dr, 2) >= 4 - 1e-9);
+        for (int j = 0; j < i; j++) assert_false(sampled_overlap(&s.box[i], &s.box[j]));
+    }
+    /* A label laid on its own line is allowed only when that line's tag
+     * is skipped. */
+    gw_label_box on = {300 + 200, 351, 40, 10, 0};
+    assert_int_equal(gw_labels_hits_line(&s, &on), 1);
+    s.skip_tag = 2;
+    assert_int_equal(gw_labels_hits_line(&s, &on), 0);
+    s.skip_tag = -1;
+    gw_labels_free(&s);
+}
+
+/* A single label along a line sits at its middle when there is room. */
+static void test_single_label_mid_line(void **state)
+{
+    (void)state;
+    gw_label_set s;
+    gw_labels_init(&s, 0, 0, 1000, 1000, 2);
+    double line[6] = {100, 100, 500, 100, 900, 100};
+    gw_label_box b;
+    assert_int_equal(gw_labels_along_line(&s, line, 3, 80, 14, 1e9, &b, 1), 1);
+    assert_true(fabs(b.cx - 500) < 8 && fabs(b.cy - 100) < 1e-9);
+    /* With the middle taken, the next one goes as near to it as fits. */
+    gw_label_box c;
+    assert_int_equal(gw_labels_along_line(&s, line, 3, 80, 14, 1e9, &c, 1), 1);
+    assert_true(fabs(c.cx - 500) < 100 && fabs(c.cx - 500) >= 80);
+    gw_labels_free(&s);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_random_labels_never_overlap),
         cmocka_unit_test(test_rotated_boxes),
         cmocka_unit_test(test_along_line),
+        cmocka_unit_test(test_labels_keep_off_feature_lines),
+        cmocka_unit_test(test_single_label_mid_line),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

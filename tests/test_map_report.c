@@ -21,6 +21,8 @@
 #include "io/map_budget.h"
 #include "io/map_canvas.h"
 #include "io/map_catchment.h"
+#include "io/map_contour.h"
+#include "io/map_frame.h"
 #include "io/map_head.h"
 #include "io/map_profile.h"
 #include "io/map_ramp.h"
@@ -354,12 +356,89 @@ static void test_report_images_decode(void **state)
     free(html);
 }
 
+/* Least distance (px) from label box b to map polyline xy (n vertices),
+ * sampling the line every 0.25 px. */
+static double box_line_px(const gw_map_page *pg, const gw_label_box *b, const double *xy, int n)
+{
+    double best = HUGE_VAL, c = cos(b->angle), s = sin(b->angle);
+    for (int i = 0; i + 1 < n; i++) {
+        double ax = gw_canvas_px(&pg->cv, xy[2 * i]), ay = gw_canvas_py(&pg->cv, xy[2 * i + 1]);
+        double bx = gw_canvas_px(&pg->cv, xy[2 * i + 2]), by = gw_canvas_py(&pg->cv, xy[2 * i + 3]);
+        int m = (int)(hypot(bx - ax, by - ay) / 0.25) + 1;
+        for (int j = 0; j <= m; j++) {
+            double x = ax + (bx - ax) * j / m - b->cx, y = ay + (by - ay) * j / m - b->cy;
+            double u = fabs(x * c + y * s) - 0.5 * b->w, v = fabs(-x * s + y * c) - 0.5 * b->h;
+            double d = hypot(u > 0 ? u : 0, v > 0 ? v : 0);
+            if (d < best) best = d;
+        }
+    }
+    return best;
+}
+
+/* The head map's layout steps on the fixture: stream, drain and divide
+ * reserved, then feature names and contour labels.  No label may come
+ * within the clearance of a stream, drain or divide, and names sit beside
+ * their own line (near it, not on it). */
+static void test_labels_clear_feature_lines(void **state)
+{
+    (void)state;
+    gw_error err = {{0}};
+    gw_map_page pg;
+    assert_int_equal(gw_map_page_begin(&pg, &F.p->grid, 1400, "t", NULL, &err), 0);
+    double fs = pg.fs, line_clear = 7 * fs, div_clear = 5 * fs;
+    assert_int_equal(gw_map_reserve_features(&pg, F.p, &F.l, line_clear, div_clear), 0);
+    gw_text_style st = gw_map_style(&pg, 10, 1);
+    assert_int_equal(gw_map_place_feature_names(&pg, F.p, &F.l, &st, &st, 11 * fs), 0);
+    int names = pg.ntext;
+    gw_contour_set cs = {0};
+    assert_int_equal(gw_contour_trace(&F.p->grid, F.sol.head, 0.25, &cs, &err), 0);
+    for (int i = 0; i < cs.nlines; i++) {
+        double *pxy = malloc((size_t)cs.line[i].n * 2 * sizeof(double));
+        assert_non_null(pxy);
+        for (int k = 0; k < cs.line[i].n; k++) {
+            pxy[2 * k] = gw_canvas_px(&pg.cv, cs.line[i].xy[2 * k]);
+            pxy[2 * k + 1] = gw_canvas_py(&pg.cv, cs.line[i].xy[2 * k + 1]);
+        }
+        gw_label_box boxes[8];
+        int n = gw_labels_along_line(&pg.labels, pxy, cs.line[i].n, 40 * fs, 12 * fs, 300 * fs, boxes, 8);
+        assert_true(n >= 0);
+        for (int j = 0; j < n; j++) assert_int_equal(gw_map_queue_text(&pg, &boxes[j], "x", &st), 0);
+        free(pxy);
+    }
+    assert_true(names >= 2);             /* East Brook and the drain at least */
+    assert_true(pg.ntext - names >= 5);  /* contour labels were placed */
+    int streams_or_drains = 0;
+    for (int t = 0; t < pg.ntext; t++) {
+        const gw_label_box *b = &pg.text[t].box;
+        for (int g = 0; g < F.l.ngeoms; g++) {
+            gw_feature_type ty = F.p->features[F.l.geoms[g].feature].type;
+            if (ty != GW_FEAT_STREAM && ty != GW_FEAT_DRAIN) continue;
+            streams_or_drains++;
+            double d = box_line_px(&pg, b, F.l.geoms[g].path.xy, F.l.geoms[g].path.n);
+            if (d < line_clear - 1e-6) fail_msg("label %d ('%s') is %.2f px from feature line %d", t, pg.text[t].text, d, g);
+        }
+        for (int v = 0; v < F.l.ndivides; v++) {
+            double d = box_line_px(&pg, b, F.l.divides[v].line.xy, F.l.divides[v].line.n);
+            if (d < div_clear - 1e-6) fail_msg("label %d is %.2f px from the divide", t, d);
+        }
+    }
+    assert_true(streams_or_drains > 0);
+    /* Each placed name is beside its own line: within 30 px of it. */
+    for (int t = 0; t < names; t++)
+        for (int g = 0; g < F.l.ngeoms; g++)
+            if (!strcmp(pg.text[t].text, F.p->features[F.l.geoms[g].feature].name))
+                assert_true(box_line_px(&pg, &pg.text[t].box, F.l.geoms[g].path.xy, F.l.geoms[g].path.n) < 30 * fs);
+    gw_contour_set_free(&cs);
+    gw_map_page_free(&pg);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_head_map),
         cmocka_unit_test(test_other_maps),
         cmocka_unit_test(test_report_images_decode),
+        cmocka_unit_test(test_labels_clear_feature_lines),
     };
     return cmocka_run_group_tests(tests, setup, teardown);
 }

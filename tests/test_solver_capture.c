@@ -167,8 +167,11 @@ static void test_uniform_flow_well(void **state)
     gw_capture_zone *z = &c.zone[0];
     assert_true(z->capture.outer >= 0);
     const gw_capring *rg = &z->capture.ring[z->capture.outer];
-    print_message("    %ld seeds, %d rings, outer ring %d vertices, area %.0f m2, well cell share %.3f\n",
-                  z->seeds, z->capture.nring, rg->n, z->capture.area, z->well_cell_share);
+    print_message("    %ld seeds tracked, %ld decided without a path, %d rings, outer ring %d vertices, "
+                  "area %.0f m2, well cell share %.3f\n", z->seeds, z->classified, z->capture.nring,
+                  rg->n, z->capture.area, z->well_cell_share);
+    /* Only seeds near the boundary are tracked (capture.h). */
+    assert_true(z->seeds < z->classified);
     /* Width across the well: Q/(2Bq) (Javandel and Tsang 1986), 3 %. */
     double w0 = width_at(rg, 0.0);
     print_message("    width at the well %.2f m, analytic Q/(2Bq) = %.2f m\n", w0, Y);
@@ -370,6 +373,25 @@ static void test_two_wells(void **state)
     drop(&m);
 }
 
+/* Ring structure: holes belong to the smallest outer ring around them
+ * (plane geometry; the rings below are squares with known areas). */
+static void test_ring_parents(void **state)
+{
+    (void)state;
+    static double ox[] = {0, 100, 100, 0}, oy[] = {0, 0, 100, 100};       /* outer, ccw */
+    static double hx[] = {40, 40, 60, 60}, hy[] = {40, 60, 60, 40};       /* hole, cw */
+    static double px[] = {200, 210, 210, 200}, py[] = {0, 0, 10, 10};     /* second part */
+    static double qx[] = {203, 203, 207, 207}, qy[] = {3, 7, 7, 3};       /* its hole */
+    gw_capring rg[4] = {{ox, oy, 4, 10000.0}, {hx, hy, 4, -400.0}, {px, py, 4, 100.0},
+                        {qx, qy, 4, -16.0}};
+    gw_capzone z = {.time = HUGE_VAL, .area = 9684.0, .ring = rg, .nring = 4, .outer = 0};
+    assert_int_equal(gw_capzone_parent(&z, 0), -1);
+    assert_int_equal(gw_capzone_parent(&z, 1), 0);
+    assert_int_equal(gw_capzone_parent(&z, 2), -1);
+    assert_int_equal(gw_capzone_parent(&z, 3), 2);
+    assert_int_equal(gw_capzone_parent(&z, 7), -1);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -378,6 +400,7 @@ int main(void)
         cmocka_unit_test(test_well_near_stream),
         cmocka_unit_test(test_recharge_fed_well),
         cmocka_unit_test(test_two_wells),
+        cmocka_unit_test(test_ring_parents),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -108,7 +108,7 @@ def run_size(args, cells):
     subprocess.run([PY, os.path.join(HERE, "make_model.py"), str(int(cells)), light, "--solve-only"],
                    check=True)
     gw = os.path.join(args.build, "gwdivide")
-    # 1. export the system (same matrix, analyses left out); not timed
+    # 1. export the system (same system, divides off); not timed
     subprocess.run([gw, "run", light, "--out", out + "-export", "--export-matrix", prefix, "--quiet"],
                    check=True)
     # 2. the timed end-to-end run
@@ -204,7 +204,7 @@ def svg_chart(rows, used, path):
     tmax = max(sum(v for _, v in b) for _, b in bars) or 1.0
     W, left, bh, gap = 860, 130, 22, 10
     H = 40 + len(bars) * (bh + gap) + 60
-    scale = (W - left - 20) / tmax
+    scale = (W - left - 70) / tmax
     names = stacked + ["other", "scipy spsolve"]
     col = {n: colours[i % len(colours)] for i, n in enumerate(names)}
     col["scipy spsolve"] = "#555555"

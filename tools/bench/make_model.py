@@ -9,8 +9,9 @@ shapes are scaled to every size, so runs differ only in resolution.
 
     make_model.py CELLS OUT.yaml [--unconfined] [--maps] [--solve-only]
 
---solve-only leaves out the divide and capture analyses (same matrix; used
-for the untimed run that exports the linear system).
+--solve-only turns the divide analysis off (same linear system; used for the
+untimed run that exports it).  Capture zones cannot be turned off while
+there are wells, so that run still tracks them.
 """
 import math
 import sys
@@ -96,13 +97,10 @@ def model(cells, unconfined=False, maps=False, solve_only=False):
         lines.append("  - {name: Well %d, at: [%.1f, %.1f], pumping: %d}" %
                      (i + 1, x + CELL / 2, y + CELL / 2, q))
     lines += [
+        "analysis:",
+        "  divides: %s" % ("false" if solve_only else "true"),
+        "  capture: {travel_times: [365, 3650]}",
     ]
-    if not solve_only:
-        lines += [
-            "analysis:",
-            "  divides: true",
-            "  capture: {travel_times: [365, 3650]}",
-        ]
     lines += [
         "output:",
         "  maps: %s" % ("true" if maps else "false"),

@@ -33,7 +33,7 @@ int gw_cmd_check(const char *model_path)
     gw_model_free(m);
     return GW_EXIT_OK;
 fail:
-    fprintf(stderr, "gwdivide: %s\n", err.msg[0] ? err.msg : "failed (no message)");
+    gw_print_error(model_path, &err);
     gw_problem_free(p);
     gw_model_free(m);
     return GW_EXIT_REJECTED;

@@ -59,4 +59,9 @@ int gw_write_transects(const gw_results *r, struct gw_outdir *o, gw_error *err);
 /* Wall-clock seconds (monotonic). */
 double gw_now(void);
 
+/* The one error block of a failed command on stderr: "gwdivide: " and the
+ * message, which names the model file (prefixed here when the stage that
+ * failed, e.g. the solver, only knew features and cells). */
+void gw_print_error(const char *model_path, const gw_error *err);
+
 #endif

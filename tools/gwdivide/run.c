@@ -23,6 +23,15 @@ double gw_now(void)
     return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
 }
 
+void gw_print_error(const char *model_path, const gw_error *err)
+{
+    const char *msg = err->msg[0] ? err->msg : "failed (no message)";
+    if (model_path && !strstr(msg, model_path))
+        fprintf(stderr, "gwdivide: %s: %s\n", model_path, msg);
+    else
+        fprintf(stderr, "gwdivide: %s\n", msg);
+}
+
 char *gw_default_out_dir(const char *model_path)
 {
     const char *slash = strrchr(model_path, '/');
@@ -103,6 +112,7 @@ static int write_outputs(gw_results *r, const char *out_dir, gw_error *err)
     gw_outdir_free(o);
     return rc;
 fail:
+    gw_outdir_unstage(o, err);
     gw_outdir_abort(o);
     gw_outdir_free(o);
     return -1;
@@ -167,7 +177,7 @@ int gw_cmd_run(const gw_run_args *a)
     status = GW_EXIT_OK;
     goto done;
 fail:
-    fprintf(stderr, "gwdivide: %s\n", err.msg[0] ? err.msg : "failed (no message)");
+    gw_print_error(a->model_path, &err);
 done:
     free(out_dir);
     gw_results_free(&r);

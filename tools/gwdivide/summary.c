@@ -26,8 +26,15 @@ static const char *aquifer_word(gw_aquifer_type t)
 }
 
 /* What the feature does, in words, from the aquifer's point of view. */
-static void describe(char *buf, size_t n, const gw_feature *ft, const gw_feature_budget *fb, const char *Q)
+static void describe(char *buf, size_t n, const gw_feature *ft, const gw_feature_budget *fb, const char *Q,
+                     int section)
 {
+    if (section && ft->type == GW_FEAT_FIXED_HEAD && fb->in > 0 && fb->out > 0) {
+        /* the water table of a section: its two roles, in the trade's words */
+        snprintf(buf, n, "recharge areas let %.4g %s into the aquifer, discharge areas take %.4g %s out",
+                 fb->in, Q, fb->out, Q);
+        return;
+    }
     switch (ft->type) {
     case GW_FEAT_RECHARGE:
         snprintf(buf, n, "adds %.4g %s", fb->net, Q);
@@ -123,6 +130,35 @@ static void print_capture(FILE *f, const gw_results *r, const char *Q)
     }
 }
 
+/* Cross-section: recharge and discharge areas, hinge points, flow systems. */
+static void print_section(FILE *f, const gw_results *r, const char *Q)
+{
+    const gw_section *s = r->section;
+    const char *L = r->model->length_unit ? r->model->length_unit : "";
+    const char *T = r->model->time_unit ? r->model->time_unit : "";
+    fprintf(f, "\nCross-section: recharge and discharge areas along the top\n");
+    fprintf(f, "  recharge areas  %.4g %s long, %.4g %s in, mean %.3g %s/%s\n", s->recharge_length, L,
+            s->recharge_flux, Q, s->recharge_rate, L, T);
+    fprintf(f, "  discharge areas %.4g %s long, %.4g %s out, mean %.3g %s/%s\n", s->discharge_length, L,
+            s->discharge_flux, Q, s->discharge_rate, L, T);
+    fprintf(f, "  %d hinge point%s (recharge/discharge boundaries)", s->nhinges, s->nhinges == 1 ? "" : "s");
+    for (int i = 0; i < s->nhinges && i < 8; i++)
+        fprintf(f, "%s x %.1f", i ? "," : ":", s->hinge[i].x);
+    fprintf(f, "%s\n", s->nhinges > 8 ? ", ..." : "");
+    int n[3] = {0, 0, 0};
+    double q[3] = {0, 0, 0}, depth[3] = {0, 0, 0};
+    for (int i = 0; i < s->nsystems; i++) {
+        int k = (int)s->system[i].kind;
+        n[k]++;
+        q[k] += s->system[i].flux;
+        if (s->system[i].depth > depth[k]) depth[k] = s->system[i].depth;
+    }
+    for (int k = 0; k < 3; k++)
+        if (n[k])
+            fprintf(f, "  %-12s %2d flow system%s carrying %.4g %s, reaching down to %.4g %s below the water table\n",
+                    gw_system_kind_name((gw_system_kind)k), n[k], n[k] == 1 ? " " : "s", q[k], Q, depth[k], L);
+}
+
 void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir)
 {
     const gw_model *m = r->model;
@@ -130,7 +166,10 @@ void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir)
     const gw_grid *g = &p->grid;
     const char *L = m->length_unit ? m->length_unit : "";
     char Q[64];
-    snprintf(Q, sizeof Q, "%s3/%s", L, m->time_unit ? m->time_unit : "");
+    if (p->type == GW_SECTION)   /* flows per unit width of section */
+        snprintf(Q, sizeof Q, "%s2/%s", L, m->time_unit ? m->time_unit : "");
+    else
+        snprintf(Q, sizeof Q, "%s3/%s", L, m->time_unit ? m->time_unit : "");
 
     long active = 0;
     for (size_t k = 0; k < gw_grid_ncells(g); k++) active += p->active[k] != 0;
@@ -146,12 +185,13 @@ void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir)
     fprintf(f, "  balance   in %.6g %s, out %.6g %s, discrepancy %.2g %%\n", b->total_in, Q, b->total_out, Q,
             b->discrepancy_percent);
 
-    fprintf(f, "\nWater budget by feature (%s; inflow enters the aquifer, outflow leaves it)\n", Q);
+    fprintf(f, "\nWater budget by feature (%s%s%s; inflow enters the aquifer, outflow leaves it)\n", Q,
+            p->type == GW_SECTION ? " per " : "", p->type == GW_SECTION ? L : "");
     fprintf(f, "  %-28s %-10s %12s %12s %12s\n", "feature", "type", "inflow", "outflow", "net");
     for (int i = 0; i < p->nfeatures && i < b->nfeatures; i++) {
         const gw_feature_budget *fb = &b->feature[i];
-        char words[160];
-        describe(words, sizeof words, &p->features[i], fb, Q);
+        char words[320];
+        describe(words, sizeof words, &p->features[i], fb, Q, p->type == GW_SECTION);
         fprintf(f, "  %-28.28s %-10s %12.6g %12.6g %+12.6g  %s\n", gw_results_feature_name(r, i),
                 type_word(p->features[i].type), fb->in, fb->out, fb->net, words);
     }
@@ -159,6 +199,7 @@ void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir)
     /* ---- analysis summaries (divides, catchments, capture zones) go here ---- */
     if (r->divides) print_divides(f, r, Q);
     if (r->capture && r->capture->nzone > 0) print_capture(f, r, Q);
+    if (r->section) print_section(f, r, Q);
 
     if (r->nobs > 0) {
         fprintf(f, "\nObservation wells (head, %s; residual = observed - simulated)\n", L);
@@ -181,8 +222,13 @@ void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir)
         fprintf(f, "\nWarnings\n");
         for (int i = 0; i < r->warnings.n; i++) fprintf(f, "  - %s\n", r->warnings.item[i]);
     }
-    fprintf(f, "\nCautions: screening tool; steady state, 2-D Dupuit flow; divides and capture zones are\n"
-               "sensitive to recharge and conductivity; protection areas are a matter for local regulation\n"
-               "and licensed professional judgement (full text in report.json).\n");
+    if (p->type == GW_SECTION)
+        fprintf(f, "\nCautions: screening tool; steady state, 2-D vertical section per unit width with no flow\n"
+                   "across its plane; the top boundary is prescribed, so flow systems follow from its shape,\n"
+                   "the conductivity and the anisotropy (full text in report.json).\n");
+    else
+        fprintf(f, "\nCautions: screening tool; steady state, 2-D Dupuit flow; divides and capture zones are\n"
+                   "sensitive to recharge and conductivity; protection areas are a matter for local regulation\n"
+                   "and licensed professional judgement (full text in report.json).\n");
     fprintf(f, "\nResults in %s/ (report.json, budget.csv, heads.tif)\n", out_dir);
 }

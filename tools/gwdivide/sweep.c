@@ -18,6 +18,7 @@
 #include "../../io/outdir.h"
 #include "../../io/sweep_key.h"
 #include "../../io/sweep_out.h"
+#include "../../io/map_sweep.h"
 #include "../../solver/budget.h"
 #include "../../solver/divide.h"
 #include "../../solver/solve.h"
@@ -157,6 +158,7 @@ typedef struct {
     int nsolvers;           /* symbolic analyses done */
     long factorizations;    /* numeric factorizations done */
     double t_build, t_solve, t_analysis;   /* seconds, summed over runs */
+    gw_sweep_profiles prof; /* heads along the transects, for sweep_profile_*.png */
 } engine_t;
 
 static void engine_free(engine_t *e)
@@ -166,6 +168,7 @@ static void engine_free(engine_t *e)
     free(e->pattern.active);
     free(e->pattern.fixed);
     free(e->start);
+    gw_sweep_profiles_free(&e->prof);
 }
 
 /* Read, build, solve and analyse one run into s->run[r]. */
@@ -224,6 +227,7 @@ static int one_run(gw_sweep *s, engine_t *e, const char *text, int r, gw_error *
     if (!e->start && !(e->start = malloc(nc * sizeof *e->start))) { gw_fail(err, "out of memory"); goto done; }
     memcpy(e->start, e->sol.head, nc * sizeof *e->start);
 
+    if (gw_sweep_profiles_take(&e->prof, r, m, &p->grid, e->sol.head, err) != 0) goto done;
     if (gw_budget_compute(p, &e->sol, &b, err) != 0) goto done;
     have_b = 1;
     run->in = malloc((size_t)p->nfeatures * sizeof *run->in);
@@ -380,7 +384,8 @@ static void print_summary(FILE *f, const gw_sweep *s, const engine_t *e, const c
                         s->feature_name[a], s->feature_name[b], n, s->nruns, r0 + 1, r1 + 1, s->feature_name[a],
                         s->feature_name[b]);
         }
-    fprintf(f, "\nResults in %s (sweep.csv, sweep_divides.json)\n", out_dir);
+    fprintf(f, "\nResults in %s (sweep.csv, sweep_divides.json%s)\n", out_dir,
+            e->prof.draw ? ", sweep_profile_*.png" : "");
 }
 
 static void progress(int r, int n, const char *vals, double elapsed)
@@ -437,6 +442,7 @@ int gw_cmd_sweep(const gw_sweep_args *a)
     s.zip = a->zip;
     s.run = calloc((size_t)nruns, sizeof *s.run);
     if (!s.run) { gw_fail(&err, "out of memory"); goto fail; }
+    if (gw_sweep_profiles_init(&e.prof, (int)nruns, &err) != 0) goto fail;
     int tty = !a->quiet && isatty(fileno(stderr));
     double t0 = gw_now();
     for (int r = 0; r < nruns; r++) {
@@ -463,6 +469,7 @@ int gw_cmd_sweep(const gw_sweep_args *a)
     const char *path;
     if (!(path = gw_outdir_path(o, "sweep.csv", &err)) || gw_sweep_csv_save(&s, path, &err) != 0) goto fail;
     if (!(path = gw_outdir_path(o, "sweep_divides.json", &err)) || gw_sweep_json_save(&s, path, &err) != 0) goto fail;
+    if (gw_sweep_profiles_write(&e.prof, &s, o, &err) != 0) goto fail;
     if (gw_outdir_commit(o, &err) != 0) goto fail;
     if (!a->quiet) print_summary(stdout, &s, &e, out_dir, seconds);
     status = GW_EXIT_OK;
@@ -472,8 +479,11 @@ usage:
     status = GW_EXIT_USAGE;
     goto done;
 fail:
-    if (o) gw_outdir_abort(o);
-    fprintf(stderr, "gwdivide: %s\n", err.msg[0] ? err.msg : "failed (no message)");
+    if (o) {
+        gw_outdir_unstage(o, &err);
+        gw_outdir_abort(o);
+    }
+    gw_print_error(a->model_path, &err);
     status = GW_EXIT_REJECTED;
 done:
     gw_outdir_free(o);
