@@ -11,9 +11,10 @@
 #   REPO  git repository to clone (default: this checkout; commit first)
 #   ROOT  directory for the fresh root (default: /var/tmp/gwdivide-freshroot)
 # GW_FRESH_WORKTREE=1 also copies uncommitted and new files of REPO's work tree.
+# GW_FRESH_CI=1 runs `bash .ci/run` (as CI does) instead of the README's commands.
 # A pristine copy of the bootstrapped root is kept in ROOT.base so later runs
 # skip the download; delete it to bootstrap anew.  The log is ROOT.log.
-# Needs about 2.5 GB of disk and 20-30 minutes (package download and builds).
+# Needs about 3 GB of disk and 20-30 minutes (package download and builds).
 set -euo pipefail
 here="$(cd "$(dirname "$0")/.." && pwd)"
 repo="${1:-$here}"
@@ -63,10 +64,14 @@ mount -t proc proc "$root/proc"
 mount --rbind /sys "$root/sys"
 mount --rbind /dev "$root/dev"
 
+# The README's two commands, or with GW_FRESH_CI=1 what CI runs.
+cmd='bash tools/setup.sh && bash tools/test.sh'
+if [ -n "${GW_FRESH_CI:-}" ]; then cmd='bash .ci/run'; fi
+echo "fresh-check: running: $cmd"
 set +e
 chroot "$root" /usr/bin/env -i HOME=/root TERM=dumb CI=true \
   PATH=/usr/local/sbin:/usr/local/bin:/usr/sbin:/usr/bin:/sbin:/bin \
-  /bin/bash -c 'cd /root/gwdivide && bash tools/setup.sh && bash tools/test.sh' \
+  /bin/bash -c "cd /root/gwdivide && $cmd" \
   </dev/null 2>&1 | tee "$log"
 rc=${PIPESTATUS[0]}
 set -e
