@@ -3,29 +3,7 @@
 #include <errno.h>
 #include <string.h>
 
-/* A CSV field per RFC 4180: quoted when it holds a comma, quote or line break. */
-static void csv_field(FILE *f, const char *s)
-{
-    if (!strpbrk(s, ",\"\r\n")) { fputs(s, f); return; }
-    fputc('"', f);
-    for (; *s; s++) {
-        if (*s == '"') fputc('"', f);
-        fputc(*s, f);
-    }
-    fputc('"', f);
-}
-
-/* Unit names go into column names: keep them to letters, digits and '_'. */
-static void unit_token(char *out, size_t n, const char *u)
-{
-    size_t k = 0;
-    for (; u && *u && k + 1 < n; u++) {
-        char c = *u;
-        out[k++] = ((c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9')) ? c : '_';
-    }
-    out[k] = 0;
-    if (k == 0) snprintf(out, n, "unit");
-}
+#include "csv_writer.h"
 
 int gw_budget_csv_write(const gw_results *r, FILE *f, gw_error *err)
 {
@@ -35,13 +13,13 @@ int gw_budget_csv_write(const gw_results *r, FILE *f, gw_error *err)
     const gw_grid *g = &p->grid;
     const gw_budget *b = &r->budget;
     char L[32], T[32];
-    unit_token(L, sizeof L, r->model->length_unit);
-    unit_token(T, sizeof T, r->model->time_unit);
+    gw_csv_unit_token(L, sizeof L, r->model->length_unit);
+    gw_csv_unit_token(T, sizeof T, r->model->time_unit);
 
     fprintf(f, "feature,type,column,row,x_%s,y_%s,inflow_%s3_per_%s,outflow_%s3_per_%s\n", L, L, L, T, L, T);
     for (int i = 0; i < p->nfeatures && i < b->nfeatures; i++) {
         if (p->features[i].type != GW_FEAT_RECHARGE) continue;
-        csv_field(f, gw_results_feature_name(r, i));
+        gw_csv_field(f, gw_results_feature_name(r, i));
         fprintf(f, ",%s,,,,,%.17g,%.17g\n", gw_feature_type_name(p->features[i].type),
                 b->feature[i].in, b->feature[i].out);
     }
@@ -49,7 +27,7 @@ int gw_budget_csv_write(const gw_results *r, FILE *f, gw_error *err)
         const gw_reach *rc = &b->reach[i];
         if (rc->feature < 0 || rc->feature >= p->nfeatures) continue;
         int col = rc->cell % g->nx, row = rc->cell / g->nx;
-        csv_field(f, gw_results_feature_name(r, rc->feature));
+        gw_csv_field(f, gw_results_feature_name(r, rc->feature));
         fprintf(f, ",%s,%d,%d,%.17g,%.17g,%.17g,%.17g\n", gw_feature_type_name(p->features[rc->feature].type),
                 col + 1, row + 1, gw_grid_xc(g, col), gw_grid_yc(g, row), rc->in, rc->out);
     }
@@ -58,12 +36,12 @@ int gw_budget_csv_write(const gw_results *r, FILE *f, gw_error *err)
     return 0;
 }
 
+static int write_table(FILE *f, const void *r, gw_error *err)
+{
+    return gw_budget_csv_write(r, f, err);
+}
+
 int gw_budget_csv_save(const gw_results *r, const char *path, gw_error *err)
 {
-    FILE *f = fopen(path, "w");
-    if (!f) return gw_fail(err, "cannot write %s: %s", path, strerror(errno));
-    int rc = gw_budget_csv_write(r, f, err);
-    if (rc) gw_fail_prefix(err, "%s: ", path);
-    if (fclose(f) != 0 && rc == 0) rc = gw_fail(err, "cannot write %s: %s", path, strerror(errno));
-    return rc;
+    return gw_csv_save(path, write_table, r, err);
 }

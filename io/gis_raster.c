@@ -14,6 +14,7 @@
 #include <gdalwarper.h>
 #include <ogr_srs_api.h>
 
+#include "gdal_quiet.h"
 #include "gis_vector.h"
 
 const char *gw_resample_rule_name(gw_resample_rule r)
@@ -26,12 +27,6 @@ const char *gw_resample_rule_name(gw_resample_rule r)
     return "?";
 }
 
-static const char *gdal_msg(void)
-{
-    const char *m = CPLGetLastErrorMsg();
-    return (m && *m) ? m : "no detail from GDAL";
-}
-
 static GDALDatasetH open_raster(const char *path, const char *what, gw_error *err)
 {
     if (access(path, R_OK) != 0) {
@@ -40,7 +35,7 @@ static GDALDatasetH open_raster(const char *path, const char *what, gw_error *er
     }
     GDALAllRegister();
     GDALDatasetH ds = GDALOpenEx(path, GDAL_OF_RASTER | GDAL_OF_READONLY, NULL, NULL, NULL);
-    if (!ds) gw_fail(err, "%s: %s is not a raster GDAL can read (%s)", what, path, gdal_msg());
+    if (!ds) gw_fail(err, "%s: %s is not a raster GDAL can read (%s)", what, path, gw_gdal_msg());
     return ds;
 }
 
@@ -217,7 +212,7 @@ static GDALDatasetH warp_to(GDALDatasetH ds, const char *dst_wkt, int has_src_nd
     GDALDatasetH w = GDALAutoCreateWarpedVRT(ds, (src_wkt && *src_wkt) ? src_wkt : NULL, dst_wkt,
                                              GRA_NearestNeighbour, 0.0, wo);
     GDALDestroyWarpOptions(wo);
-    if (!w) gw_fail(err, "%s: cannot reproject raster %s onto the grid: %s", what, path, gdal_msg());
+    if (!w) gw_fail(err, "%s: cannot reproject raster %s onto the grid: %s", what, path, gw_gdal_msg());
     return w;
 }
 
@@ -322,7 +317,7 @@ int gw_raster_resample(const gw_raster_query *q, const gw_grid *g, const unsigne
             buf = malloc((size_t)wn * (size_t)nrows * sizeof *buf);
             if (!buf) { gw_fail(err, "out of memory reading %s", q->path); goto done; }
             if (GDALRasterIO(band, GF_Read, wx0, ry0, wn, nrows, buf, wn, nrows, GDT_Float64, 0, 0) != CE_None) {
-                gw_fail(err, "%s: read error in raster %s: %s", what, q->path, gdal_msg());
+                gw_fail(err, "%s: read error in raster %s: %s", what, q->path, gw_gdal_msg());
                 goto done;
             }
         }

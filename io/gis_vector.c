@@ -12,31 +12,17 @@
 #include <ogr_api.h>
 #include <ogr_srs_api.h>
 
-/* GDAL reports through a global handler that prints; only the command may
- * print, so GDAL's messages are captured and folded into gw_error values. */
-static void quiet_begin(void)
-{
-    CPLPushErrorHandler(CPLQuietErrorHandler);
-    CPLErrorReset();
-}
-
-static void quiet_end(void) { CPLPopErrorHandler(); }
-
-static const char *gdal_msg(void)
-{
-    const char *m = CPLGetLastErrorMsg();
-    return (m && *m) ? m : "no detail from GDAL";
-}
+#include "gdal_quiet.h"
 
 void *gw_gis_srs(const char *crs, gw_error *err)
 {
     OGRSpatialReferenceH srs = OSRNewSpatialReference(NULL);
     if (!srs) { gw_fail(err, "out of memory"); return NULL; }
-    quiet_begin();
+    gw_gdal_quiet_begin();
     OGRErr e = OSRSetFromUserInput(srs, crs);
     if (e != OGRERR_NONE)
-        gw_fail(err, "\"%s\" is not a coordinate reference system GDAL recognises (%s)", crs, gdal_msg());
-    quiet_end();
+        gw_fail(err, "\"%s\" is not a coordinate reference system GDAL recognises (%s)", crs, gw_gdal_msg());
+    gw_gdal_quiet_end();
     if (e != OGRERR_NONE) {
         OSRDestroySpatialReference(srs);
         return NULL;
@@ -218,7 +204,7 @@ static int plan_transform(const gw_vquery *q, OGRLayerH lyr, const char *lname, 
         *ct = OCTNewCoordinateTransformation(src, dst);
         if (!*ct)
             rc = gw_fail(err, "%s: cannot reproject layer '%s' of %s to %s: %s", q->what, lname, q->file,
-                         q->target_crs, gdal_msg());
+                         q->target_crs, gw_gdal_msg());
     }
     OSRDestroySpatialReference(src);
     OSRDestroySpatialReference(dst);
@@ -274,7 +260,7 @@ static int read_feature(const gw_vquery *q, const char *lname, OGRFeatureH feat,
     int rc = 0;
     if (ct && OGR_G_Transform(g, ct) != OGRERR_NONE)
         rc = gw_fail(err, "%s: feature %ld of layer '%s' in %s could not be reprojected to %s: %s", q->what, f->fid,
-                     lname, q->file, q->target_crs, gdal_msg());
+                     lname, q->file, q->target_crs, gw_gdal_msg());
     if (rc == 0 && take_vertices(g, q->kind, f, &why) != 0)
         rc = gw_fail(err, "%s: feature %ld of layer '%s' in %s %s", q->what, f->fid, lname, q->file, why);
     OGR_G_DestroyGeometry(g);
@@ -291,7 +277,7 @@ int gw_vector_read(const gw_vquery *q, gw_vfeature **out, int *nout, gw_error *e
         return gw_fail(err, "%s: cannot open %s: %s", what, q->file, strerror(errno));
 
     GDALAllRegister();
-    quiet_begin();
+    gw_gdal_quiet_begin();
     int rc = -1;
     gw_vfeature *fs = NULL;
     int nf = 0, cap = 0;
@@ -299,7 +285,7 @@ int gw_vector_read(const gw_vquery *q, gw_vfeature **out, int *nout, gw_error *e
     OGRCoordinateTransformationH ct = NULL;
     GDALDatasetH ds = GDALOpenEx(q->file, GDAL_OF_VECTOR | GDAL_OF_READONLY, NULL, NULL, NULL);
     if (!ds) {
-        gw_fail(err, "%s: %s is not a vector file GDAL can read (%s)", what, q->file, gdal_msg());
+        gw_fail(err, "%s: %s is not a vector file GDAL can read (%s)", what, q->file, gw_gdal_msg());
         goto done;
     }
     OGRLayerH lyr = NULL;
@@ -348,7 +334,7 @@ int gw_vector_read(const gw_vquery *q, gw_vfeature **out, int *nout, gw_error *e
     }
     if (q->where && *q->where && OGR_L_SetAttributeFilter(lyr, q->where) != OGRERR_NONE) {
         gw_fail(err, "%s: where \"%s\" is not a valid filter for layer '%s' of %s (%s)", what, q->where, lname,
-                q->file, gdal_msg());
+                q->file, gw_gdal_msg());
         goto done;
     }
     gw_vquery qq = *q;
@@ -374,9 +360,9 @@ int gw_vector_read(const gw_vquery *q, gw_vfeature **out, int *nout, gw_error *e
     if (CPLGetLastErrorType() >= CE_Failure) {
         if (q->where && *q->where)   /* some drivers check the filter only when reading */
             gw_fail(err, "%s: where \"%s\" is not a valid filter for layer '%s' of %s (%s)", what, q->where, lname,
-                    q->file, gdal_msg());
+                    q->file, gw_gdal_msg());
         else
-            gw_fail(err, "%s: error while reading layer '%s' of %s: %s", what, lname, q->file, gdal_msg());
+            gw_fail(err, "%s: error while reading layer '%s' of %s: %s", what, lname, q->file, gw_gdal_msg());
         goto done;
     }
     if (nf == 0) {
@@ -390,7 +376,7 @@ int gw_vector_read(const gw_vquery *q, gw_vfeature **out, int *nout, gw_error *e
 done:
     if (ct) OCTDestroyCoordinateTransformation(ct);
     if (ds) GDALClose(ds);
-    quiet_end();
+    gw_gdal_quiet_end();
     free(fidx);
     if (rc == 0) {
         *out = fs;

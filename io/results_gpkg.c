@@ -15,6 +15,7 @@
 #include <ogr_api.h>
 #include <ogr_srs_api.h>
 
+#include "gdal_quiet.h"
 
 struct gw_gpkg {
     char *path;
@@ -25,12 +26,6 @@ struct gw_gpkg {
     int nfields;
     int in_tx;                    /* a transaction is open */
 };
-
-static const char *gdal_msg(void)
-{
-    const char *m = CPLGetLastErrorMsg();
-    return (m && *m) ? m : "no detail from GDAL";
-}
 
 void gw_field_unit(const char *unit, char *buf, size_t len)
 {
@@ -77,7 +72,7 @@ gw_gpkg *gw_gpkg_create(const char *path, const char *crs, gw_error *err)
     CPLErrorReset();
     GDALDriverH drv = GDALGetDriverByName("GPKG");
     if (drv) g->ds = GDALCreate(drv, path, 0, 0, 0, GDT_Unknown, NULL);
-    if (!g->ds) gw_fail(err, "cannot create %s: %s", path, drv ? gdal_msg() : "GDAL has no GeoPackage driver");
+    if (!g->ds) gw_fail(err, "cannot create %s: %s", path, drv ? gw_gdal_msg() : "GDAL has no GeoPackage driver");
     CPLPopErrorHandler();
     if (!g->ds) {
         gw_gis_srs_free(g->srs);
@@ -94,7 +89,7 @@ static int commit(gw_gpkg *g, gw_error *err)
     if (!g->in_tx) return 0;
     g->in_tx = 0;
     if (GDALDatasetCommitTransaction(g->ds) != OGRERR_NONE)
-        return gw_fail(err, "cannot write %s: %s", g->path, gdal_msg());
+        return gw_fail(err, "cannot write %s: %s", g->path, gw_gdal_msg());
     return 0;
 }
 
@@ -114,7 +109,7 @@ static int make_layer(gw_gpkg *g, const char *name, OGRwkbGeometryType t, const 
     CPLErrorReset();
     g->layer = GDALDatasetCreateLayer(g->ds, name, g->srs, t, opts);
     CSLDestroy(opts);
-    if (!g->layer) return gw_fail(err, "cannot create layer %s in %s: %s", name, g->path, gdal_msg());
+    if (!g->layer) return gw_fail(err, "cannot create layer %s in %s: %s", name, g->path, gw_gdal_msg());
     for (int i = 0; i < nfields; i++) {
         OGRFieldType ft = fields[i].type == GW_FIELD_INT ? OFTInteger64
                         : fields[i].type == GW_FIELD_REAL ? OFTReal : OFTString;
@@ -122,7 +117,7 @@ static int make_layer(gw_gpkg *g, const char *name, OGRwkbGeometryType t, const 
         OGRErr e = OGR_L_CreateField(g->layer, fd, TRUE);
         OGR_Fld_Destroy(fd);
         if (e != OGRERR_NONE)
-            return gw_fail(err, "cannot add field %s to layer %s: %s", fields[i].name, name, gdal_msg());
+            return gw_fail(err, "cannot add field %s to layer %s: %s", fields[i].name, name, gw_gdal_msg());
     }
     g->nfields = nfields;
     if (GDALDatasetStartTransaction(g->ds, FALSE) == OGRERR_NONE) g->in_tx = 1;
@@ -222,7 +217,7 @@ int gw_gpkg_add(gw_gpkg *g, const double *const *parts, const int *n, int nparts
         geom = NULL;
         set_values(f, NULL, g->nfields, vals);
         if (OGR_L_CreateFeature(g->layer, f) != OGRERR_NONE)
-            rc = gw_fail(err, "cannot write a feature of layer %s: %s", OGR_L_GetName(g->layer), gdal_msg());
+            rc = gw_fail(err, "cannot write a feature of layer %s: %s", OGR_L_GetName(g->layer), gw_gdal_msg());
     }
     if (geom) OGR_G_DestroyGeometry(geom);
     if (f) OGR_F_Destroy(f);
@@ -292,7 +287,7 @@ int gw_gpkg_contours(gw_gpkg *g, const char *name, const gw_grid *grid, const do
     if (make_layer(g, name, wkbLineString, f, 2, description, err) != 0) goto done;
     if (skip) { rc = 0; goto done; }
     mem = mem_raster(grid, GDT_Float64, buf, ND);
-    if (!mem) { gw_fail(err, "cannot prepare heads for contouring: %s", gdal_msg()); goto done; }
+    if (!mem) { gw_fail(err, "cannot prepare heads for contouring: %s", gw_gdal_msg()); goto done; }
     char **opts = NULL;
     char tmp[64];
     snprintf(tmp, sizeof tmp, "%.17g", interval);
@@ -303,7 +298,7 @@ int gw_gpkg_contours(gw_gpkg *g, const char *name, const gw_grid *grid, const do
     opts = CSLSetNameValue(opts, "NODATA", tmp);
     CPLErr e = GDALContourGenerateEx(GDALGetRasterBand(mem, 1), g->layer, opts, NULL, NULL);
     CSLDestroy(opts);
-    if (e != CE_None) { gw_fail(err, "head contours: %s", gdal_msg()); goto done; }
+    if (e != CE_None) { gw_fail(err, "head contours: %s", gw_gdal_msg()); goto done; }
     rc = 0;
 done:
     if (mem) GDALClose(mem);
@@ -341,13 +336,13 @@ int gw_gpkg_class_polygons(gw_gpkg *g, const char *name, const gw_grid *grid, co
     GDALDriverH vdrv = GDALGetDriverByName("Memory");
     if (vdrv) vmem = GDALCreate(vdrv, "", 0, 0, 0, GDT_Unknown, NULL);
     OGRLayerH tmp = vmem ? GDALDatasetCreateLayer(vmem, "p", NULL, wkbPolygon, NULL) : NULL;
-    if (!mem || !tmp) { gw_fail(err, "cannot prepare %s: %s", name, gdal_msg()); goto done; }
+    if (!mem || !tmp) { gw_fail(err, "cannot prepare %s: %s", name, gw_gdal_msg()); goto done; }
     OGRFieldDefnH fd = OGR_Fld_Create("cls", OFTInteger);
     OGR_L_CreateField(tmp, fd, TRUE);
     OGR_Fld_Destroy(fd);
     GDALRasterBandH band = GDALGetRasterBand(mem, 1);
     if (GDALPolygonize(band, GDALGetMaskBand(band), tmp, 0, NULL, NULL, NULL) != CE_None) {
-        gw_fail(err, "%s: polygonizing failed: %s", name, gdal_msg());
+        gw_fail(err, "%s: polygonizing failed: %s", name, gw_gdal_msg());
         goto done;
     }
     /* Gather the pieces of each class into one multipolygon. */
@@ -372,7 +367,7 @@ int gw_gpkg_class_polygons(gw_gpkg *g, const char *name, const gw_grid *grid, co
         multi[c] = NULL;
         OGRErr e = OGR_L_CreateFeature(g->layer, o);
         OGR_F_Destroy(o);
-        if (e != OGRERR_NONE) { gw_fail(err, "cannot write layer %s: %s", name, gdal_msg()); goto done; }
+        if (e != OGRERR_NONE) { gw_fail(err, "cannot write layer %s: %s", name, gw_gdal_msg()); goto done; }
     }
     rc = 0;
 done:
@@ -401,7 +396,7 @@ int gw_gpkg_close(gw_gpkg *g, gw_error *err)
     CPLErrorReset();
     int rc = commit(g, err);
     GDALClose(g->ds);
-    if (rc == 0 && CPLGetLastErrorType() >= CE_Failure) rc = gw_fail(err, "cannot write %s: %s", g->path, gdal_msg());
+    if (rc == 0 && CPLGetLastErrorType() >= CE_Failure) rc = gw_fail(err, "cannot write %s: %s", g->path, gw_gdal_msg());
     CPLPopErrorHandler();
     if (rc != 0) unlink(g->path);
     destroy(g);

@@ -6,6 +6,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "csv_writer.h"
 #include "json_writer.h"
 
 void gw_sweep_run_free(gw_sweep_run *r, int ntransects)
@@ -92,57 +93,28 @@ double gw_sweep_track_value(const gw_sweep *s, int r, int t)
 
 /* ---- sweep.csv -------------------------------------------------------- */
 
-static void csv_field(FILE *f, const char *s)
-{
-    if (!strpbrk(s, ",\"\r\n")) { fputs(s, f); return; }
-    fputc('"', f);
-    for (; *s; s++) {
-        if (*s == '"') fputc('"', f);
-        fputc(*s, f);
-    }
-    fputc('"', f);
-}
-
-static void unit_token(char *out, size_t n, const char *u)
-{
-    size_t k = 0;
-    for (; u && *u && k + 1 < n; u++) {
-        char c = *u;
-        out[k++] = ((c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9')) ? c : '_';
-    }
-    out[k] = 0;
-    if (k == 0) snprintf(out, n, "unit");
-}
-
-static void num(FILE *f, double v)
-{
-    fputc(',', f);
-    if (isfinite(v)) fprintf(f, "%.12g", v);
-}
-
 static const char *fname(const gw_sweep *s, int i)
 {
     return i >= 0 && i < s->nfeatures ? s->feature_name[i] : "?";
 }
 
-int gw_sweep_csv_save(const gw_sweep *s, const char *path, gw_error *err)
+static int write_table(FILE *f, const void *ctx, gw_error *err)
 {
-    FILE *f = fopen(path, "w");
-    if (!f) return gw_fail(err, "cannot write %s: %s", path, strerror(errno));
+    const gw_sweep *s = ctx;
     char L[32], T[32], h[1200];
-    unit_token(L, sizeof L, s->length_unit);
-    unit_token(T, sizeof T, s->time_unit);
+    gw_csv_unit_token(L, sizeof L, s->length_unit);
+    gw_csv_unit_token(T, sizeof T, s->time_unit);
 
     fputs("run", f);
-    for (int v = 0; v < s->nvary; v++) { fputc(',', f); csv_field(f, s->vary[v].key); }
+    for (int v = 0; v < s->nvary; v++) { fputc(',', f); gw_csv_field(f, s->vary[v].key); }
     fputs(",converged,iterations,discrepancy_percent", f);
     for (int i = 0; i < s->nfeatures; i++) {
         snprintf(h, sizeof h, "%s inflow_%s3_per_%s", fname(s, i), L, T);
-        fputc(',', f); csv_field(f, h);
+        fputc(',', f); gw_csv_field(f, h);
         snprintf(h, sizeof h, "%s outflow_%s3_per_%s", fname(s, i), L, T);
-        fputc(',', f); csv_field(f, h);
+        fputc(',', f); gw_csv_field(f, h);
         snprintf(h, sizeof h, "%s state", fname(s, i));
-        fputc(',', f); csv_field(f, h);
+        fputc(',', f); gw_csv_field(f, h);
     }
     fputs(",divide_count", f);
     for (int t = 0; t < s->ntrack; t++) {
@@ -151,7 +123,7 @@ int gw_sweep_csv_save(const gw_sweep *s, const char *path, gw_error *err)
         if (k->occurrence > 1) snprintf(occ, sizeof occ, " #%d", k->occurrence);
         snprintf(h, sizeof h, "%s: %s | %s divide%s distance_%s", s->transect_name[k->transect],
                  fname(s, k->a), fname(s, k->b), occ, L);
-        fputc(',', f); csv_field(f, h);
+        fputc(',', f); gw_csv_field(f, h);
     }
     fputs(",no_divide\n", f);
 
@@ -164,15 +136,15 @@ int gw_sweep_csv_save(const gw_sweep *s, const char *path, gw_error *err)
             fprintf(f, ",%s", b);
         }
         fprintf(f, ",%s,%d", run->converged ? "true" : "false", run->iterations);
-        num(f, run->discrepancy_percent);
+        gw_csv_num(f, run->discrepancy_percent, 12);
         for (int i = 0; i < s->nfeatures; i++) {
-            num(f, run->in[i]);
-            num(f, run->out[i]);
+            gw_csv_num(f, run->in[i], 12);
+            gw_csv_num(f, run->out[i], 12);
             fprintf(f, ",%s", gw_state_name(run->state[i]));
         }
         if (run->have_divides) fprintf(f, ",%d", run->divides.n);
         else fputc(',', f);
-        for (int t = 0; t < s->ntrack; t++) num(f, gw_sweep_track_value(s, r, t));
+        for (int t = 0; t < s->ntrack; t++) gw_csv_num(f, gw_sweep_track_value(s, r, t), 12);
         h[0] = 0;
         size_t hl = 0;
         for (int i = 0; i < run->nno_divide && hl + 4 < sizeof h; i++) {
@@ -182,12 +154,15 @@ int gw_sweep_csv_save(const gw_sweep *s, const char *path, gw_error *err)
             hl += (size_t)w < sizeof h - hl ? (size_t)w : sizeof h - hl - 1;
         }
         fputc(',', f);
-        csv_field(f, h);
+        gw_csv_field(f, h);
         fputc('\n', f);
     }
-    int rc = (fflush(f) != 0 || ferror(f)) ? gw_fail(err, "cannot write %s", path) : 0;
-    if (fclose(f) != 0 && rc == 0) rc = gw_fail(err, "cannot write %s: %s", path, strerror(errno));
-    return rc;
+    return 0;
+}
+
+int gw_sweep_csv_save(const gw_sweep *s, const char *path, gw_error *err)
+{
+    return gw_csv_save(path, write_table, s, err);
 }
 
 /* ---- sweep_divides.json ----------------------------------------------- */

@@ -1,8 +1,8 @@
 #include "transect_csv.h"
 
-#include <errno.h>
-#include <math.h>
 #include <string.h>
+
+#include "csv_writer.h"
 
 static void clean_name(const char *name, char *out, size_t n)
 {
@@ -40,42 +40,14 @@ const char *gw_cross_kind_name(gw_cross_kind k)
     return "divide";
 }
 
-static void csv_field(FILE *f, const char *s)
-{
-    if (!strpbrk(s, ",\"\r\n")) { fputs(s, f); return; }
-    fputc('"', f);
-    for (; *s; s++) {
-        if (*s == '"') fputc('"', f);
-        fputc(*s, f);
-    }
-    fputc('"', f);
-}
-
-static void unit_token(char *out, size_t n, const char *u)
-{
-    size_t k = 0;
-    for (; u && *u && k + 1 < n; u++) {
-        char c = *u;
-        out[k++] = ((c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9')) ? c : '_';
-    }
-    out[k] = 0;
-    if (k == 0) snprintf(out, n, "unit");
-}
-
-static void num(FILE *f, double v)
-{
-    fputc(',', f);
-    if (isfinite(v)) fprintf(f, "%.10g", v);
-}
-
 static void row(FILE *f, const gw_transect_sample *s)
 {
     fprintf(f, "%.10g", s->dist);
-    num(f, s->x);
-    num(f, s->y);
-    num(f, s->head);
-    num(f, s->qn);
-    num(f, s->qa);
+    gw_csv_num(f, s->x, 10);
+    gw_csv_num(f, s->y, 10);
+    gw_csv_num(f, s->head, 10);
+    gw_csv_num(f, s->qn, 10);
+    gw_csv_num(f, s->qa, 10);
     fputc(',', f);
 }
 
@@ -88,8 +60,8 @@ int gw_transect_csv_write(FILE *f, const gw_transect *t, const gw_problem *p,
                           const char *length_unit, const char *time_unit, gw_error *err)
 {
     char L[32], T[32], F[80];
-    unit_token(L, sizeof L, length_unit);
-    unit_token(T, sizeof T, time_unit);
+    gw_csv_unit_token(L, sizeof L, length_unit);
+    gw_csv_unit_token(T, sizeof T, time_unit);
     if (p->type == GW_SECTION) snprintf(F, sizeof F, "%s_per_%s", L, T);
     else snprintf(F, sizeof F, "%s2_per_%s", L, T);
     fprintf(f, "distance_%s,x_%s,y_%s,head_%s,flux_normal_%s,flux_along_%s,crossing\n", L, L, L, L, F, F);
@@ -104,7 +76,7 @@ int gw_transect_csv_write(FILE *f, const gw_transect *t, const gw_problem *p,
             else
                 snprintf(what, sizeof what, "%s", gw_cross_kind_name(c->kind));
             row(f, &c->at);
-            csv_field(f, what);
+            gw_csv_field(f, what);
             fputc('\n', f);
         }
         if (i < t->n) {
@@ -116,13 +88,21 @@ int gw_transect_csv_write(FILE *f, const gw_transect *t, const gw_problem *p,
     return 0;
 }
 
+typedef struct {
+    const gw_transect *t;
+    const gw_problem *p;
+    const char *length_unit, *time_unit;
+} table_args;
+
+static int write_table(FILE *f, const void *ctx, gw_error *err)
+{
+    const table_args *a = ctx;
+    return gw_transect_csv_write(f, a->t, a->p, a->length_unit, a->time_unit, err);
+}
+
 int gw_transect_csv_save(const char *path, const gw_transect *t, const gw_problem *p,
                          const char *length_unit, const char *time_unit, gw_error *err)
 {
-    FILE *f = fopen(path, "w");
-    if (!f) return gw_fail(err, "cannot write %s: %s", path, strerror(errno));
-    int rc = gw_transect_csv_write(f, t, p, length_unit, time_unit, err);
-    if (rc) gw_fail_prefix(err, "%s: ", path);
-    if (fclose(f) != 0 && rc == 0) rc = gw_fail(err, "cannot write %s: %s", path, strerror(errno));
-    return rc;
+    table_args a = { t, p, length_unit, time_unit };
+    return gw_csv_save(path, write_table, &a, err);
 }
