@@ -5,6 +5,7 @@
 #include "model_check.h"
 #include "gis_raster.h"
 #include "model_layers.h"
+#include "model_text.h"
 #include "yaml_get.h"
 #include "yaml_tree.h"
 
@@ -891,41 +892,8 @@ gw_model *gw_model_load_string(const char *text, const char *path, gw_error *err
 
 gw_model *gw_model_load(const char *path, gw_error *err)
 {
-    FILE *f = fopen(path, "rb");
-    if (!f) {
-        gw_fail(err, "%s: cannot open the model file: %s", path, strerror(errno));
-        return NULL;
-    }
-    size_t cap = 65536, len = 0;
-    char *buf = malloc(cap);
-    while (buf) {
-        size_t got = fread(buf + len, 1, cap - len - 1, f);
-        len += got;
-        if (got == 0) break;
-        if (len + 1 == cap) {
-            if (cap > (size_t)GW_MAX_FILE_BYTES) {
-                free(buf);
-                fclose(f);
-                gw_fail(err, "%s: the model file is larger than %ld MB", path, GW_MAX_FILE_BYTES >> 20);
-                return NULL;
-            }
-            char *b = realloc(buf, cap * 2);
-            if (!b) { free(buf); buf = NULL; break; }
-            buf = b;
-            cap *= 2;
-        }
-    }
-    int rerr = ferror(f);
-    fclose(f);
-    if (!buf) { gw_fail(err, "%s: out of memory", path); return NULL; }
-    if (rerr) { free(buf); gw_fail(err, "%s: read error", path); return NULL; }
-    buf[len] = '\0';
-    if (strlen(buf) != len) {
-        size_t at = strlen(buf);
-        free(buf);
-        gw_fail(err, "%s: the model file contains a NUL byte at offset %zu (not a text file?)", path, at);
-        return NULL;
-    }
+    char *buf = gw_model_read_text(path, GW_MAX_FILE_BYTES, err);
+    if (!buf) return NULL;
     gw_model *m = gw_model_load_string(buf, path, err);
     free(buf);
     return m;

@@ -1,5 +1,7 @@
 #include "capture.h"
 
+#include "parallel.h"
+
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -12,6 +14,7 @@ void gw_capture_options_default(gw_capture_options *o)
     o->ntimes = 0;
     o->weak = GW_WEAK_THRESHOLD;
     o->weak_threshold = 0.5;
+    o->threads = 0;
 }
 
 /* ---- Flux-weighted partition ------------------------------------------ */
@@ -225,6 +228,7 @@ typedef struct {
      * (CL_IN, CL_OUT).  Time-limited: stop in the well and CL_OUT only. */
     gw_track_options topt, ttopt;
     int refine;
+    int threads;          /* for gw_parallel_for */
     /* Lattice: NX x NY nodes, x east (I), y north (J); the outermost ring
      * of nodes lies on the box edge and counts as outside. */
     int NX, NY;
@@ -235,6 +239,7 @@ typedef struct {
     int *emap;            /* lattice edge -> point index */
     double *px, *py;
     int *next;
+    int *pa, *pb;         /* lattice nodes inside / outside each point's edge */
     int np, pcap;
 } lattice;
 
@@ -253,20 +258,10 @@ static int inside_point(lattice *L, double x, double y, double tlim, gw_error *e
     return r.end == GW_END_STOP_CELL && r.stop_value == CL_WELL && r.time <= tlim;
 }
 
-/* Crossing point on the lattice edge from node a (inside) to b (outside). */
-static int crossing(lattice *L, int eid, int a, int b, double tlim, gw_error *err)
+/* New boundary point on the edge from lattice node a (inside) to b
+ * (outside); its position is found later by bisect_point. */
+static int add_point(lattice *L, int a, int b, gw_error *err)
 {
-    if (L->emap[eid] >= 0)
-        return L->emap[eid];
-    double ax = L->xs[a % L->NX], ay = L->ys[a / L->NX];
-    double bx = L->xs[b % L->NX], by = L->ys[b / L->NX];
-    for (int i = 0; i < L->refine; i++) {
-        double mx = 0.5 * (ax + bx), my = 0.5 * (ay + by);
-        int in = inside_point(L, mx, my, tlim, err);
-        if (in < 0)
-            return -1;
-        if (in) { ax = mx; ay = my; } else { bx = mx; by = my; }
-    }
     if (L->np == L->pcap) {
         int nc = L->pcap ? 2 * L->pcap : 256;
         double *nx = realloc(L->px, (size_t)nc * sizeof *nx);
@@ -278,13 +273,44 @@ static int crossing(lattice *L, int eid, int a, int b, double tlim, gw_error *er
         int *nn = realloc(L->next, (size_t)nc * sizeof *nn);
         if (!nn) return gw_fail(err, "out of memory tracing a capture zone");
         L->next = nn;
+        int *na = realloc(L->pa, (size_t)nc * sizeof *na);
+        if (!na) return gw_fail(err, "out of memory tracing a capture zone");
+        L->pa = na;
+        int *nb = realloc(L->pb, (size_t)nc * sizeof *nb);
+        if (!nb) return gw_fail(err, "out of memory tracing a capture zone");
+        L->pb = nb;
         L->pcap = nc;
     }
-    L->px[L->np] = 0.5 * (ax + bx);
-    L->py[L->np] = 0.5 * (ay + by);
+    L->pa[L->np] = a;
+    L->pb[L->np] = b;
     L->next[L->np] = -1;
-    L->emap[eid] = L->np;
     return L->np++;
+}
+
+typedef struct {
+    lattice *L;
+    double tlim;
+} bisect_job;
+
+/* Crossing point i: bisect its lattice edge (parallel item; writes only
+ * px[i], py[i]). */
+static int bisect_point(void *ctx, long i, gw_error *err)
+{
+    const bisect_job *j = ctx;
+    lattice *L = j->L;
+    int a = L->pa[i], b = L->pb[i];
+    double ax = L->xs[a % L->NX], ay = L->ys[a / L->NX];
+    double bx = L->xs[b % L->NX], by = L->ys[b / L->NX];
+    for (int k = 0; k < L->refine; k++) {
+        double mx = 0.5 * (ax + bx), my = 0.5 * (ay + by);
+        int in = inside_point(L, mx, my, j->tlim, err);
+        if (in < 0)
+            return -1;
+        if (in) { ax = mx; ay = my; } else { bx = mx; by = my; }
+    }
+    L->px[i] = 0.5 * (ax + bx);
+    L->py[i] = 0.5 * (ay + by);
+    return 0;
 }
 
 static void zone_free(gw_capzone *z)
@@ -309,42 +335,58 @@ static int trace_zone(lattice *L, double tlim, gw_capzone *z, gw_error *err)
     for (size_t i = 0; i < 2 * (size_t)NX * NY; i++)
         L->emap[i] = -1;
 #define IN(n) (L->cap[n] && L->time[n] <= tlim)
-    for (int J = 0; J + 1 < NY; J++)
-        for (int I = 0; I + 1 < NX; I++) {
-            int a = J * NX + I, b = a + 1, c = a + NX + 1, d = a + NX;
-            int ia = IN(a), ib = IN(b), ic = IN(c), id = IN(d);
-            if (ia == ib && ib == ic && ic == id)
-                continue;
-            /* Square edges counter-clockwise: a->b, b->c, c->d, d->a. */
-            const int from[4] = {a, b, c, d}, to[4] = {b, c, d, a};
-            const int eid[4] = {2 * a, 2 * b + 1, 2 * d, 2 * a + 1};
-            const int in[4] = {ia, ib, ic, id};
-            int pt[4], kind[4];   /* kind: 1 exit (in -> out), 2 entry */
-            for (int e = 0; e < 4; e++) {
-                int iu = in[e], iv = in[(e + 1) % 4];
-                kind[e] = 0;
-                pt[e] = -1;
-                if (iu == iv)
+    /* Number the boundary points in scan order, bisect them all (in
+     * parallel: each is its own set of paths), then link them.  Point
+     * numbers and positions do not depend on the thread count. */
+    for (int pass = 0; pass < 2; pass++) {
+        if (pass == 1) {
+            bisect_job job = {.L = L, .tlim = tlim};
+            if (gw_parallel_for(L->threads, L->np, bisect_point, &job, err) != 0)
+                return -1;
+        }
+        for (int J = 0; J + 1 < NY; J++)
+            for (int I = 0; I + 1 < NX; I++) {
+                int a = J * NX + I, b = a + 1, c = a + NX + 1, d = a + NX;
+                int ia = IN(a), ib = IN(b), ic = IN(c), id = IN(d);
+                if (ia == ib && ib == ic && ic == id)
                     continue;
-                kind[e] = iu ? 1 : 2;
-                pt[e] = iu ? crossing(L, eid[e], from[e], to[e], tlim, err)
-                           : crossing(L, eid[e], to[e], from[e], tlim, err);
-                if (pt[e] < 0)
-                    return -1;
-            }
-            /* Inside on the left: join each exit to the next entry. */
-            for (int e = 0; e < 4; e++) {
-                if (kind[e] != 1)
+                /* Square edges counter-clockwise: a->b, b->c, c->d, d->a. */
+                const int from[4] = {a, b, c, d}, to[4] = {b, c, d, a};
+                const int eid[4] = {2 * a, 2 * b + 1, 2 * d, 2 * a + 1};
+                const int in[4] = {ia, ib, ic, id};
+                int pt[4], kind[4];   /* kind: 1 exit (in -> out), 2 entry */
+                for (int e = 0; e < 4; e++) {
+                    int iu = in[e], iv = in[(e + 1) % 4];
+                    kind[e] = 0;
+                    pt[e] = -1;
+                    if (iu == iv)
+                        continue;
+                    kind[e] = iu ? 1 : 2;
+                    if (L->emap[eid[e]] < 0) {
+                        int q = iu ? add_point(L, from[e], to[e], err)
+                                   : add_point(L, to[e], from[e], err);
+                        if (q < 0)
+                            return -1;
+                        L->emap[eid[e]] = q;
+                    }
+                    pt[e] = L->emap[eid[e]];
+                }
+                if (pass == 0)
                     continue;
-                for (int s = 1; s < 4; s++) {
-                    int e2 = (e + s) % 4;
-                    if (kind[e2] == 2) {
-                        L->next[pt[e]] = pt[e2];
-                        break;
+                /* Inside on the left: join each exit to the next entry. */
+                for (int e = 0; e < 4; e++) {
+                    if (kind[e] != 1)
+                        continue;
+                    for (int s = 1; s < 4; s++) {
+                        int e2 = (e + s) % 4;
+                        if (kind[e2] == 2) {
+                            L->next[pt[e]] = pt[e2];
+                            break;
+                        }
                     }
                 }
             }
-        }
+    }
 #undef IN
     /* Follow the links into closed rings. */
     unsigned char *seen = calloc((size_t)L->np + 1, 1);
@@ -505,6 +547,11 @@ typedef struct {
     gw_capture_zone *cz;
     int s, c0, r1;
     unsigned char *st;     /* node state */
+    /* Nodes waiting to be tracked: list, their paths, node -> list slot. */
+    size_t *todo;
+    struct node_path *path;
+    long ntodo, todo_cap;
+    int *slot;
     long ncap;             /* captured nodes */
     double npass;          /* expected number of them that pass a weak sink */
 } seeding;
@@ -546,27 +593,74 @@ static void decide_free(seeding *sd, size_t n)
     }
 }
 
-/* State of node n, tracking its path if nothing decides it yet. */
-static int eval_node(seeding *sd, size_t n, gw_error *err)
+/* What the seeding needs of one tracked path. */
+struct node_path {
+    gw_track_end end;
+    int stop_value, cell, weak_passed;
+    double retained;
+};
+
+/* Queue node n for tracking unless it is known or already queued. */
+static int want_node(seeding *sd, size_t n, gw_error *err)
 {
-    if (sd->st[n] != ND_UNKNOWN)
-        return sd->st[n];
-    lattice *L = sd->L;
+    if (sd->st[n] != ND_UNKNOWN || sd->slot[n] >= 0)
+        return 0;
+    if (sd->ntodo == sd->todo_cap) {
+        long nc = sd->todo_cap ? 2 * sd->todo_cap : 1024;
+        size_t *nt = realloc(sd->todo, (size_t)nc * sizeof *nt);
+        if (!nt)
+            return gw_fail(err, "out of memory for the capture-zone lattice");
+        sd->todo = nt;
+        struct node_path *np = realloc(sd->path, (size_t)nc * sizeof *np);
+        if (!np)
+            return gw_fail(err, "out of memory for the capture-zone lattice");
+        sd->path = np;
+        sd->todo_cap = nc;
+    }
+    sd->slot[n] = (int)sd->ntodo;
+    sd->todo[sd->ntodo++] = n;
+    return 0;
+}
+
+/* Track queued node i (parallel item; writes only path[i]). */
+static int track_node(void *ctx, long i, gw_error *err)
+{
+    seeding *sd = ctx;
+    const lattice *L = sd->L;
+    size_t n = sd->todo[i];
     gw_track_result r = {0};
     if (gw_track(L->f, L->xs[n % (size_t)L->NX], L->ys[n / (size_t)L->NX], &L->topt, &r, err) != 0)
         return -1;
+    sd->path[i] = (struct node_path){.end = r.end, .stop_value = r.stop_value, .cell = r.cell,
+                                     .weak_passed = r.weak_passed, .retained = r.retained};
+    return 0;
+}
+
+/* Track every queued node; the queue is then emptied by apply_node. */
+static int track_queued(seeding *sd, gw_error *err)
+{
+    return gw_parallel_for(sd->L->threads, sd->ntodo, track_node, sd, err);
+}
+
+/* State of node n from its tracked path (if still unknown); called in a
+ * fixed node order so counts and sums do not depend on the threads. */
+static void apply_node(seeding *sd, size_t n)
+{
+    if (sd->st[n] != ND_UNKNOWN)
+        return;
+    const struct node_path *r = &sd->path[sd->slot[n]];
+    sd->slot[n] = -1;
     sd->cz->seeds++;
-    sd->cz->ends[r.end]++;
-    if (r.end != GW_END_STOP_CELL || r.stop_value == CL_OUT) {
+    sd->cz->ends[r->end]++;
+    if (r->end != GW_END_STOP_CELL || r->stop_value == CL_OUT) {
         sd->st[n] = ND_OUT;
-        return ND_OUT;
+        return;
     }
     /* Ended in the well, or in a cell all of whose paths do: the weak sinks
      * passed so far, then that cell's record. */
-    int tail = r.stop_value == CL_IN;
-    set_in(sd, n, r.weak_passed ? 1.0 : tail ? sd->ws->pw[r.cell] : 0.0,
-           r.retained * (tail ? sd->ws->wr[r.cell] : 1.0));
-    return ND_IN;
+    int tail = r->stop_value == CL_IN;
+    set_in(sd, n, r->weak_passed ? 1.0 : tail ? sd->ws->pw[r->cell] : 0.0,
+           r->retained * (tail ? sd->ws->wr[r->cell] : 1.0));
 }
 
 /* Node range of block index b along an axis of nn nodes. */
@@ -585,21 +679,34 @@ static int seed_lattice(seeding *sd, gw_error *err)
     const size_t nb = (size_t)BX * BY;
     int rc = -1;
     sd->st = calloc(nn, 1);
+    sd->slot = malloc(nn * sizeof *sd->slot);
+    sd->todo = NULL;
+    sd->path = NULL;
+    sd->ntodo = sd->todo_cap = 0;
     unsigned char *flag = calloc(nb, 1);
     int *queue = malloc(nb * sizeof *queue);
-    if (!sd->st || !flag || !queue) {
+    if (!sd->st || !sd->slot || !flag || !queue) {
         gw_fail(err, "out of memory for the capture-zone lattice");
         goto done;
     }
     for (size_t n = 0; n < nn; n++) {
         L->time[n] = HUGE_VAL;
+        sd->slot[n] = -1;
         decide_free(sd, n);
     }
-    /* Block corners. */
-    for (int J = 0; J < NY; J = J + COARSE < NY - 1 ? J + COARSE : (J == NY - 1 ? NY : NY - 1))
-        for (int I = 0; I < NX; I = I + COARSE < NX - 1 ? I + COARSE : (I == NX - 1 ? NX : NX - 1))
-            if (eval_node(sd, (size_t)J * NX + I, err) < 0)
-                goto done;
+    /* Block corners: track them all, then record them in scan order. */
+#define CORNERS(BODY)                                                                         \
+    for (int J = 0; J < NY; J = J + COARSE < NY - 1 ? J + COARSE : (J == NY - 1 ? NY : NY - 1)) \
+        for (int I = 0; I < NX; I = I + COARSE < NX - 1 ? I + COARSE : (I == NX - 1 ? NX : NX - 1)) { \
+            size_t n = (size_t)J * NX + I;                                                     \
+            BODY;                                                                              \
+        }
+    CORNERS(if (want_node(sd, n, err) != 0) goto done)
+    if (track_queued(sd, err) != 0)
+        goto done;
+    CORNERS(apply_node(sd, n))
+#undef CORNERS
+    sd->ntodo = 0;
     /* Blocks whose known nodes disagree. */
     long head = 0, tail = 0;
     for (int by = 0; by < BY; by++)
@@ -621,16 +728,34 @@ static int seed_lattice(seeding *sd, gw_error *err)
                 }
         }
     /* Track every node of a flagged block, then flag the neighbours whose
-     * shared edge shows a state other than their corners'. */
+     * shared edge shows a state other than their corners'.  The queue is
+     * taken a wave at a time: the nodes of all blocks queued so far are
+     * tracked together, then the blocks are finished in queue order --
+     * the same order, counts and flags as one block at a time. */
+    long wave_end = head;
     while (head < tail) {
+        if (head == wave_end) {
+            wave_end = tail;
+            sd->ntodo = 0;
+            for (long q = head; q < wave_end; q++) {
+                int i0, i1, j0, j1;
+                block_span(queue[q] % BX, NX, &i0, &i1);
+                block_span(queue[q] / BX, NY, &j0, &j1);
+                for (int J = j0; J <= j1; J++)
+                    for (int I = i0; I <= i1; I++)
+                        if (want_node(sd, (size_t)J * NX + I, err) != 0)
+                            goto done;
+            }
+            if (track_queued(sd, err) != 0)
+                goto done;
+        }
         int b = queue[head++], bx = b % BX, by = b / BX;
         int i0, i1, j0, j1;
         block_span(bx, NX, &i0, &i1);
         block_span(by, NY, &j0, &j1);
         for (int J = j0; J <= j1; J++)
             for (int I = i0; I <= i1; I++)
-                if (eval_node(sd, (size_t)J * NX + I, err) < 0)
-                    goto done;
+                apply_node(sd, (size_t)J * NX + I);
         static const int DX4[4] = {1, -1, 0, 0}, DY4[4] = {0, 0, 1, -1};
         for (int d = 0; d < 4; d++) {
             int nbx = bx + DX4[d], nby = by + DY4[d];
@@ -682,6 +807,12 @@ static int seed_lattice(seeding *sd, gw_error *err)
 done:
     free(sd->st);
     sd->st = NULL;
+    free(sd->slot);
+    sd->slot = NULL;
+    free(sd->todo);
+    free(sd->path);
+    sd->todo = NULL;
+    sd->path = NULL;
     free(flag);
     free(queue);
     return rc;
@@ -784,6 +915,7 @@ static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture
     gw_track_options_default(&L.topt);
     L.topt.weak = o->weak;
     L.topt.weak_threshold = o->weak_threshold;
+    L.topt.no_length = 1;   /* zones use where and when paths end, not how far they went */
     /* Cells the well takes water from stop every path. */
     for (size_t k = 0; k < nc; k++)
         ws->cls[k] = ws->fout[k] > 0.0 ? CL_WELL : CL_BAND;
@@ -819,6 +951,7 @@ static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture
     L.ttopt = L.topt;
     L.ttopt.stop_mask = ws->tmask;
     L.refine = o->refine > 0 ? o->refine : 10;
+    L.threads = o->threads > 0 ? o->threads : gw_default_threads();
     L.NX = (c1 - c0 + 1) * s + 2;
     L.NY = (r1 - r0 + 1) * s + 2;
     size_t nn = (size_t)L.NX * L.NY;
@@ -869,6 +1002,8 @@ done:
     free(L.px);
     free(L.py);
     free(L.next);
+    free(L.pa);
+    free(L.pb);
     return rc;
 }
 

@@ -86,6 +86,9 @@ typedef struct {
     int ntimes;
     gw_weak_rule weak;       /* rule at sinks of other features (default threshold) */
     double weak_threshold;   /* default 0.5 */
+    /* Threads tracking paths (<= 0: the online CPUs, at most 8).  The
+     * zones are the same, bit for bit, whatever the number. */
+    int threads;
 } gw_capture_options;
 
 void gw_capture_options_default(gw_capture_options *o);

@@ -27,6 +27,7 @@ void gw_track_options_default(gw_track_options *o)
     o->weak_threshold = 0.5;
     o->stop_mask = NULL;
     o->record_path = 0;
+    o->no_length = 0;
 }
 
 void gw_track_result_free(gw_track_result *r)
@@ -46,10 +47,9 @@ typedef struct {
     double fx1, fx2, fy1, fy2;
 } cell_flux;
 
-static cell_flux face_fluxes(const gw_flowfield *f, int k, double sgn)
+static cell_flux face_fluxes_at(const gw_flowfield *f, int k, int col, int row, double sgn)
 {
     const gw_grid *g = &f->grid;
-    int col = k % g->nx, row = k / g->nx;
     cell_flux c;
     c.fx1 = col > 0 ? f->qe[k - 1] : 0.0;
     c.fx2 = col + 1 < g->nx ? f->qe[k] : 0.0;
@@ -57,6 +57,11 @@ static cell_flux face_fluxes(const gw_flowfield *f, int k, double sgn)
     c.fy2 = row > 0 ? -f->qs[k - g->nx] : 0.0;
     c.fx1 *= sgn; c.fx2 *= sgn; c.fy1 *= sgn; c.fy2 *= sgn;
     return c;
+}
+
+static cell_flux face_fluxes(const gw_flowfield *f, int k, double sgn)
+{
+    return face_fluxes_at(f, k, k % f->grid.nx, k / f->grid.nx, sgn);
 }
 
 static int usable(const gw_flowfield *f, int k)
@@ -232,7 +237,7 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
             e = GW_END_MAX_STEPS;
             break;
         }
-        cell_flux c = face_fluxes(f, k, sgn);
+        cell_flux c = face_fluxes_at(f, k, col, row, sgn);   /* no division by nx */
         double ibn = 1.0 / (f->sat_thick[k] * f->porosity[k]);   /* one division per cell */
         double ix = ibn / g->dy, iy = ibn / g->dx;
         double vx1 = c.fx1 * ix, vx2 = c.fx2 * ix;
@@ -256,7 +261,8 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
         if (remain <= t) {
             double nx = advance(vx1, vx2, g->dx, px, remain);
             double ny = advance(vy1, vy2, g->dy, py, remain);
-            r->length += sqrt((nx - px) * (nx - px) + (ny - py) * (ny - py));
+            if (!o->no_length)
+                r->length += sqrt((nx - px) * (nx - px) + (ny - py) * (ny - py));
             px = nx;
             py = ny;
             r->time += remain;
@@ -268,7 +274,8 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
         int exit_y = ty <= tx * (1.0 + 1e-12);
         double nx = exit_x ? (dirx > 0 ? g->dx : 0.0) : advance(vx1, vx2, g->dx, px, t);
         double ny = exit_y ? (diry > 0 ? g->dy : 0.0) : advance(vy1, vy2, g->dy, py, t);
-        r->length += sqrt((nx - px) * (nx - px) + (ny - py) * (ny - py));
+        if (!o->no_length)
+            r->length += sqrt((nx - px) * (nx - px) + (ny - py) * (ny - py));
         r->time += t;
         r->steps++;
         int ncol = col + (exit_x ? (int)dirx : 0);

@@ -52,6 +52,8 @@ typedef struct {
      * callers can also mark cells whose outcome is already known. */
     const unsigned char *stop_mask;
     int record_path;              /* keep the vertices of the path */
+    int no_length;                /* skip the path length (result length 0): one square
+                                   * root less per cell, for callers that ignore it */
 } gw_track_options;
 
 void gw_track_options_default(gw_track_options *o);

@@ -5,7 +5,7 @@ Seeded random mutations of the test and demo model files (delete, duplicate,
 swap and re-indent lines; numbers turned into 0, -1, 1e308, nan or huge
 strings; values of another type; truncation; binary bytes and tabs; deep
 nesting; anchors and aliases; huge grids; files that are not what a key
-expects) go through `gwdivide check` and `gwdivide run --out`.  Every run
+expects; damaged copies of the demo's GIS layers) go through `gwdivide check` and `gwdivide run --out`.  Every run
 must
   - end with exit status 0 or 1 (never a signal, never 2: the usage is
     always right, so a 2 would be a model problem reported as bad usage);
@@ -230,6 +230,31 @@ def mutate(r, data):
     return b"\n".join(lines)
 
 
+def corrupt_gis(r, src, dst):
+    """A copy of the GIS layers with one file damaged: bytes overwritten,
+    truncated, emptied or replaced by a folder."""
+    shutil.copytree(src, dst)
+    names = sorted(os.listdir(dst))
+    if not names:
+        return
+    victim = os.path.join(dst, r.choice(names))
+    data = bytearray(open(victim, "rb").read())
+    how = r.random()
+    if how < 0.5 and data:
+        for _ in range(r.choice([1, 10, 200])):
+            data[r.randrange(len(data))] = r.randrange(256)
+    elif how < 0.8:
+        data = data[:r.randrange(len(data) + 1)]
+    elif how < 0.9:
+        data = bytearray()
+    else:
+        os.remove(victim)
+        os.mkdir(victim)
+        return
+    with open(victim, "wb") as f:
+        f.write(data)
+
+
 def snapshot(path):
     """What a folder holds: None when absent, else name -> content digest."""
     if not os.path.lexists(path):
@@ -291,7 +316,9 @@ def one(i):
     try:
         # Relative paths in a model (GIS layers) resolve beside it.
         gis = os.path.join(os.path.dirname(seed), "gis")
-        if os.path.isdir(gis):
+        if os.path.isdir(gis) and r.random() < 0.25:
+            corrupt_gis(r, gis, os.path.join(work, "gis"))
+        elif os.path.isdir(gis):
             os.symlink(gis, os.path.join(work, "gis"))
         model = os.path.join(work, "m%05d.yaml" % i)
         mutant = mutate(r, data)

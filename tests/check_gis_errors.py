@@ -13,14 +13,14 @@ import subprocess
 import sys
 import tempfile
 
-try:
-    from osgeo import gdal, ogr, osr
-except ImportError:  # CMake may pick a Python without Debian's GDAL bindings
-    if os.path.exists("/usr/bin/python3") and os.path.realpath(sys.executable) != os.path.realpath("/usr/bin/python3"):
-        os.execv("/usr/bin/python3", ["/usr/bin/python3"] + sys.argv)
-    raise
+import gwcheck_util
 
-CMD = os.environ.get("GW_COMMAND", "gwdivide")
+# CMake may pick a Python without Debian's GDAL bindings.
+gwcheck_util.need_system_python("osgeo.gdal", "osgeo.ogr", "osgeo.osr")
+
+from osgeo import gdal, ogr, osr  # noqa: E402
+
+CMD = gwcheck_util.command()
 gdal.UseExceptions()
 ogr.UseExceptions()
 

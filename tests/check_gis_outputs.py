@@ -13,15 +13,15 @@ import subprocess
 import sys
 import tempfile
 
-try:
-    from osgeo import gdal, ogr
-except ImportError:  # CMake may pick a Python without Debian's GDAL bindings
-    if os.path.exists("/usr/bin/python3") and os.path.realpath(sys.executable) != os.path.realpath("/usr/bin/python3"):
-        os.execv("/usr/bin/python3", ["/usr/bin/python3"] + sys.argv)
-    raise
+import gwcheck_util
 
-SRC = os.environ.get("GW_SOURCE_DIR", os.path.join(os.path.dirname(__file__), ".."))
-CMD = os.environ.get("GW_COMMAND", "gwdivide")
+# CMake may pick a Python without Debian's GDAL bindings.
+gwcheck_util.need_system_python("osgeo.gdal", "osgeo.ogr")
+
+from osgeo import gdal, ogr  # noqa: E402
+
+SRC = gwcheck_util.SOURCE_DIR
+CMD = gwcheck_util.command()
 
 R, S, I = ogr.OFTReal, ogr.OFTString, ogr.OFTInteger64
 EXPECTED = {

@@ -19,21 +19,11 @@ import subprocess
 import sys
 import tempfile
 
+import gwcheck_util
 
-def _reexec_with_system_python():
-    """SciPy/GDAL are Debian packages: use the system interpreter when the
-    one on PATH (e.g. a private one) lacks them."""
-    try:
-        import numpy  # noqa: F401
-        import scipy  # noqa: F401
-        from osgeo import gdal  # noqa: F401
-    except ImportError:
-        if os.path.exists("/usr/bin/python3") and os.path.realpath(sys.executable) != os.path.realpath("/usr/bin/python3"):
-            os.execv("/usr/bin/python3", ["/usr/bin/python3"] + sys.argv)
-        raise
-
-
-_reexec_with_system_python()
+# SciPy/GDAL are Debian packages: use the system interpreter when the one on
+# PATH (e.g. a private one) lacks them.
+gwcheck_util.need_system_python("numpy", "scipy", "osgeo.gdal")
 
 import numpy as np  # noqa: E402
 import scipy.io  # noqa: E402
@@ -96,9 +86,8 @@ output:
 
 
 def main():
-    cmd = os.environ.get("GW_COMMAND")
-    if not cmd or not os.path.exists(cmd):
-        print("GW_COMMAND not set or missing: %r" % cmd)
+    cmd = gwcheck_util.built_command()
+    if cmd is None:
         return 1
     with tempfile.TemporaryDirectory(prefix="gw-scipy-") as tmp:
         mpath = os.path.join(tmp, "model.yaml")

@@ -26,15 +26,14 @@ import subprocess
 import sys
 import tempfile
 
-try:
-    import numpy as np
-    from scipy.integrate import quad, solve_ivp
-except ImportError:
-    # The Debian python3-numpy/python3-scipy packages belong to the system
-    # interpreter; rerun under it when another python3 comes first on PATH.
-    if sys.executable != "/usr/bin/python3" and os.path.exists("/usr/bin/python3"):
-        os.execv("/usr/bin/python3", ["/usr/bin/python3"] + sys.argv)
-    raise
+import gwcheck_util
+
+# The Debian python3-numpy/python3-scipy packages belong to the system
+# interpreter; rerun under it when another python3 comes first on PATH.
+gwcheck_util.need_system_python("numpy", "scipy.integrate")
+
+import numpy as np  # noqa: E402
+from scipy.integrate import quad, solve_ivp  # noqa: E402
 
 
 def fail(msg):

@@ -18,24 +18,21 @@
 #include <ogr_srs_api.h>
 
 #include "io/results_gpkg.h"
+#include "fixture_tmpdir.h"
 
 static char dir[256];
 
 static int setup(void **state)
 {
     (void)state;
-    const char *tmp = getenv("TMPDIR");
-    snprintf(dir, sizeof dir, "%s/gw-gpkg-XXXXXX", tmp && *tmp ? tmp : "/tmp");
     GDALAllRegister();
-    return mkdtemp(dir) ? 0 : -1;
+    return fixture_tmpdir_make(dir, sizeof dir, "gw-gpkg");
 }
 
 static int teardown(void **state)
 {
     (void)state;
-    char cmd[300];
-    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
-    return system(cmd) == 0 ? 0 : -1;
+    return fixture_tmpdir_remove(dir);
 }
 
 static void test_field_unit(void **state)

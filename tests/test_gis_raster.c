@@ -19,23 +19,20 @@
 
 #include "io/gis_raster.h"
 #include "io/heads_tif.h"
+#include "fixture_tmpdir.h"
 
 static char dir[256];
 
 static int setup(void **state)
 {
     (void)state;
-    const char *tmp = getenv("TMPDIR");
-    snprintf(dir, sizeof dir, "%s/gw-gisr-XXXXXX", tmp && *tmp ? tmp : "/tmp");
-    return mkdtemp(dir) ? 0 : -1;
+    return fixture_tmpdir_make(dir, sizeof dir, "gw-gisr");
 }
 
 static int teardown(void **state)
 {
     (void)state;
-    char cmd[300];
-    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
-    return system(cmd) == 0 ? 0 : -1;
+    return fixture_tmpdir_remove(dir);
 }
 
 /* A raster of nx x ny pixels of size d from (x0, y0), value f(col, row). */

@@ -14,6 +14,7 @@
 
 #include "io/gis_vector.h"
 #include "io/results_gpkg.h"
+#include "fixture_tmpdir.h"
 
 static char dir[256], gpkg[300], nocrs[300], geo[300];
 
@@ -23,9 +24,7 @@ static char dir[256], gpkg[300], nocrs[300], geo[300];
 static int setup(void **state)
 {
     (void)state;
-    const char *tmp = getenv("TMPDIR");
-    snprintf(dir, sizeof dir, "%s/gw-gisv-XXXXXX", tmp && *tmp ? tmp : "/tmp");
-    if (!mkdtemp(dir)) return -1;
+    if (fixture_tmpdir_make(dir, sizeof dir, "gw-gisv") != 0) return -1;
     snprintf(gpkg, sizeof gpkg, "%s/in.gpkg", dir);
     snprintf(nocrs, sizeof nocrs, "%s/nocrs.gpkg", dir);
     snprintf(geo, sizeof geo, "%s/geo.gpkg", dir);
@@ -79,9 +78,7 @@ static int setup(void **state)
 static int teardown(void **state)
 {
     (void)state;
-    char cmd[300];
-    snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
-    return system(cmd) == 0 ? 0 : -1;
+    return fixture_tmpdir_remove(dir);
 }
 
 static void test_lines_with_attributes(void **state)

@@ -23,6 +23,7 @@
 #include "solver/problem.h"
 #include "solver/rasterize.h"
 #include "solver/solve.h"
+#include "fixture_strip.h"
 
 enum { NX = 90, NY = 70 };
 static const double DX = 15.0, DY = 15.0;
@@ -92,12 +93,8 @@ static gw_problem *model(gw_aquifer_type type, double stream_stage, double base)
 
 static void run(const gw_problem *p, gw_solution *sol, gw_budget *b, gw_catchments *c)
 {
-    gw_solve_options o;
-    gw_solve_options_default(&o);
-    o.head_tol = 1e-10;
-    o.resid_tol = 1e-12;
+    fixture_solve_tight(p, sol, 1e-10);
     gw_error err = {{0}};
-    if (gw_solve(p, &o, sol, &err)) fail_msg("solve: %s", err.msg);
     if (gw_budget_compute(p, sol, b, &err)) fail_msg("budget: %s", err.msg);
     gw_flowfield f;
     if (gw_flowfield_compute(p, sol, &f, &err)) fail_msg("flow field: %s", err.msg);

@@ -20,15 +20,12 @@
 #include "solver/problem.h"
 #include "solver/rasterize.h"
 #include "solver/solve.h"
+#include "fixture_strip.h"
 
 static void solve_analyse(const gw_problem *p, gw_solution *sol, gw_divide_analysis *a)
 {
-    gw_solve_options o;
-    gw_solve_options_default(&o);
-    o.head_tol = 1e-11;
-    o.resid_tol = 1e-12;
+    fixture_solve_tight(p, sol, 1e-11);
     gw_error err = {{0}};
-    if (gw_solve(p, &o, sol, &err)) fail_msg("solve: %s", err.msg);
     if (gw_divide_analysis_run(p, sol, a, &err)) fail_msg("divides: %s", err.msg);
 }
 

@@ -24,6 +24,7 @@
 #include "solver/divide.h"
 #include "solver/problem.h"
 #include "solver/solve.h"
+#include "fixture_strip.h"
 
 enum { NX = 41, NY = 3 };
 static const double DX = 25.0, DY = 40.0;
@@ -33,35 +34,13 @@ static gw_problem *strip(gw_aquifer_type type, double k, double thick_or_base, d
                          double hb, double rech)
 {
     gw_grid g = {.nx = NX, .ny = NY, .x0 = 0.0, .y0 = 0.0, .dx = DX, .dy = DY};
-    gw_error err;
-    gw_problem *p = gw_problem_new(&g, type, &err);
-    assert_non_null(p);
-    int fw = gw_problem_add_feature(p, "West canal", GW_FEAT_FIXED_HEAD, &err);
-    int fe = gw_problem_add_feature(p, "East canal", GW_FEAT_FIXED_HEAD, &err);
-    assert_true(fw == 1 && fe == 2);
-    for (int r = 0; r < NY; r++)
-        for (int c = 0; c < NX; c++) {
-            int i = r * NX + c;
-            p->k[i] = k;
-            if (type == GW_CONFINED)
-                p->thick[i] = thick_or_base;
-            else
-                p->bottom[i] = thick_or_base;
-            p->recharge[i] = rech;
-            if (c == 0) { p->fixed[i] = ha; p->fixed_feature[i] = fw; }
-            if (c == NX - 1) { p->fixed[i] = hb; p->fixed_feature[i] = fe; }
-        }
-    return p;
+    return fixture_strip(&g, type, k, thick_or_base, ha, hb, rech);
 }
 
 static void analyse(const gw_problem *p, gw_solution *sol, gw_budget *b, gw_divide_analysis *a)
 {
-    gw_solve_options o;
-    gw_solve_options_default(&o);
-    o.head_tol = 1e-11;
-    o.resid_tol = 1e-12;
+    fixture_solve_tight(p, sol, 1e-11);
     gw_error err = {{0}};
-    if (gw_solve(p, &o, sol, &err)) fail_msg("solve: %s", err.msg);
     if (gw_budget_compute(p, sol, b, &err)) fail_msg("budget: %s", err.msg);
     if (gw_divide_analysis_run(p, sol, a, &err)) fail_msg("divides: %s", err.msg);
 }

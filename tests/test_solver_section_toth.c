@@ -40,6 +40,7 @@
 #include "solver/problem.h"
 #include "solver/section.h"
 #include "solver/solve.h"
+#include "fixture_strip.h"
 
 #ifndef M_PI
 #define M_PI 3.14159265358979323846
@@ -163,12 +164,8 @@ typedef struct {
 
 static void solve_section(run *r)
 {
-    gw_solve_options o;
-    gw_solve_options_default(&o);
-    o.head_tol = 1e-11;
-    o.resid_tol = 1e-12;
+    fixture_solve_tight(r->p, &r->sol, 1e-11);
     gw_error err = {{0}};
-    if (gw_solve(r->p, &o, &r->sol, &err)) fail_msg("solve: %s", err.msg);
     if (gw_budget_compute(r->p, &r->sol, &r->b, &err)) fail_msg("budget: %s", err.msg);
     /* DESIGN: the balance closes to < 1e-6 percent on every test model. */
     print_message("    balance: in %.10g out %.10g discrepancy %.3g %%\n", r->b.total_in,

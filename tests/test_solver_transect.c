@@ -23,6 +23,7 @@
 #include "solver/problem.h"
 #include "solver/solve.h"
 #include "solver/transect.h"
+#include "fixture_strip.h"
 
 enum { NX = 41, NY = 9 };
 static const double DX = 25.0, DY = 20.0;
@@ -32,21 +33,7 @@ static const double K = 15.0, B = 12.0, R = 0.0008, H1 = 50.0, H2 = 49.0;
 static gw_problem *strip(void)
 {
     gw_grid g = {.nx = NX, .ny = NY, .x0 = 0.0, .y0 = 0.0, .dx = DX, .dy = DY};
-    gw_error err;
-    gw_problem *p = gw_problem_new(&g, GW_CONFINED, &err);
-    assert_non_null(p);
-    int fw = gw_problem_add_feature(p, "West", GW_FEAT_FIXED_HEAD, &err);
-    int fe = gw_problem_add_feature(p, "East", GW_FEAT_FIXED_HEAD, &err);
-    for (int r = 0; r < NY; r++)
-        for (int c = 0; c < NX; c++) {
-            int i = r * NX + c;
-            p->k[i] = K;
-            p->thick[i] = B;
-            p->recharge[i] = R;
-            if (c == 0) { p->fixed[i] = H1; p->fixed_feature[i] = fw; }
-            if (c == NX - 1) { p->fixed[i] = H2; p->fixed_feature[i] = fe; }
-        }
-    return p;
+    return fixture_strip(&g, GW_CONFINED, K, B, H1, H2, R);
 }
 
 static double x_d(void) { return L / 2 - (K * B / R) * (H1 - H2) / L; }

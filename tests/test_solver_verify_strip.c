@@ -28,6 +28,7 @@
 #include "solver/observe.h"
 #include "solver/problem.h"
 #include "solver/solve.h"
+#include "fixture_strip.h"
 
 enum { NX = 41, NY = 3 };
 static const double DX = 25.0, DY = 40.0;   /* unequal on purpose */
@@ -39,36 +40,12 @@ static gw_problem *strip(gw_aquifer_type type, double k, double thick_or_base,
                          double ha, double hb, double rech)
 {
     gw_grid g = {.nx = NX, .ny = NY, .x0 = 0.0, .y0 = 0.0, .dx = DX, .dy = DY};
-    gw_error err;
-    gw_problem *p = gw_problem_new(&g, type, &err);
-    assert_non_null(p);
-    int fw = gw_problem_add_feature(p, "West canal", GW_FEAT_FIXED_HEAD, &err);
-    int fe = gw_problem_add_feature(p, "East canal", GW_FEAT_FIXED_HEAD, &err);
-    assert_true(fw > 0 && fe > 0);
-    for (int r = 0; r < NY; r++)
-        for (int c = 0; c < NX; c++) {
-            int i = r * NX + c;
-            p->k[i] = k;
-            if (type == GW_CONFINED)
-                p->thick[i] = thick_or_base;
-            else
-                p->bottom[i] = thick_or_base;
-            p->recharge[i] = rech;
-            if (c == 0) { p->fixed[i] = ha; p->fixed_feature[i] = fw; }
-            if (c == NX - 1) { p->fixed[i] = hb; p->fixed_feature[i] = fe; }
-        }
-    return p;
+    return fixture_strip(&g, type, k, thick_or_base, ha, hb, rech);
 }
 
 static void solve_tight(const gw_problem *p, gw_solution *sol)
 {
-    gw_solve_options o;
-    gw_solve_options_default(&o);
-    o.head_tol = 1e-11;
-    o.resid_tol = 1e-12;
-    gw_error err = {{0}};
-    int rc = gw_solve(p, &o, sol, &err);
-    if (rc != 0) fail_msg("solve failed: %s", err.msg);
+    fixture_solve_tight(p, sol, 1e-11);
     assert_true(sol->converged);
 }
 

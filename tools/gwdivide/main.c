@@ -74,25 +74,45 @@ static int take_value(int argc, char **argv, int *i, const char *opt, const char
     return 1;
 }
 
+/* The model file (one only); anything else starting with '-' is an unknown
+ * option.  Returns 0 when taken, else the usage exit status. */
+static int take_model(const char *arg, const char **model)
+{
+    if (arg[0] == '-' && arg[1] != 0) return usage_error("unknown option %s", arg);
+    if (*model) return usage_error("one model file at a time (extra argument %s)", arg);
+    *model = arg;
+    return 0;
+}
+
+/* Arguments shared by the solving commands (run, sweep): --out DIR,
+ * --quiet / -q and the model file.  Returns 0 when argv[*i] was taken,
+ * else the usage exit status. */
+static int take_common(int argc, char **argv, int *i, const char **out_dir, int *quiet, const char **model)
+{
+    const char *v = NULL;
+    if (take_value(argc, argv, i, "--out", &v)) {
+        if (!v || !*v) return usage_error("%s needs a directory", "--out");
+        *out_dir = v;
+        return 0;
+    }
+    if (!strcmp(argv[*i], "--quiet") || !strcmp(argv[*i], "-q")) {
+        *quiet = 1;
+        return 0;
+    }
+    return take_model(argv[*i], model);
+}
+
 static int main_run(int argc, char **argv)
 {
     gw_run_args a = {0};
     for (int i = 2; i < argc; i++) {
         const char *v = NULL;
-        if (take_value(argc, argv, &i, "--out", &v)) {
-            if (!v || !*v) return usage_error("%s needs a directory", "--out");
-            a.out_dir = v;
-        } else if (take_value(argc, argv, &i, "--export-matrix", &v)) {
+        if (take_value(argc, argv, &i, "--export-matrix", &v)) {
             if (!v || !*v) return usage_error("%s needs a file-name prefix", "--export-matrix");
             a.export_prefix = v;
-        } else if (!strcmp(argv[i], "--quiet") || !strcmp(argv[i], "-q")) {
-            a.quiet = 1;
-        } else if (argv[i][0] == '-' && argv[i][1] != 0) {
-            return usage_error("unknown option %s", argv[i]);
-        } else if (a.model_path) {
-            return usage_error("one model file at a time (extra argument %s)", argv[i]);
         } else {
-            a.model_path = argv[i];
+            int rc = take_common(argc, argv, &i, &a.out_dir, &a.quiet, &a.model_path);
+            if (rc) return rc;
         }
     }
     if (!a.model_path) return usage_error("%s needs a model file", "run");
@@ -103,9 +123,8 @@ static int main_check(int argc, char **argv)
 {
     const char *model = NULL;
     for (int i = 2; i < argc; i++) {
-        if (argv[i][0] == '-' && argv[i][1] != 0) return usage_error("unknown option %s", argv[i]);
-        if (model) return usage_error("one model file at a time (extra argument %s)", argv[i]);
-        model = argv[i];
+        int rc = take_model(argv[i], &model);
+        if (rc) return rc;
     }
     if (!model) return usage_error("%s needs a model file", "check");
     return gw_cmd_check(model);
@@ -117,23 +136,15 @@ static int main_sweep(int argc, char **argv)
     const char *vary[64];
     for (int i = 2; i < argc; i++) {
         const char *v = NULL;
-        if (take_value(argc, argv, &i, "--out", &v)) {
-            if (!v || !*v) return usage_error("%s needs a directory", "--out");
-            a.out_dir = v;
-        } else if (take_value(argc, argv, &i, "--vary", &v)) {
+        if (take_value(argc, argv, &i, "--vary", &v)) {
             if (!v || !*v) return usage_error("%s needs KEY=FROM:TO:N", "--vary");
             if (a.nvary == (int)(sizeof vary / sizeof vary[0])) return usage_error("too many %s options", "--vary");
             vary[a.nvary++] = v;
         } else if (!strcmp(argv[i], "--zip")) {
             a.zip = 1;
-        } else if (!strcmp(argv[i], "--quiet") || !strcmp(argv[i], "-q")) {
-            a.quiet = 1;
-        } else if (argv[i][0] == '-' && argv[i][1] != 0) {
-            return usage_error("unknown option %s", argv[i]);
-        } else if (a.model_path) {
-            return usage_error("one model file at a time (extra argument %s)", argv[i]);
         } else {
-            a.model_path = argv[i];
+            int rc = take_common(argc, argv, &i, &a.out_dir, &a.quiet, &a.model_path);
+            if (rc) return rc;
         }
     }
     if (!a.model_path) return usage_error("%s needs a model file", "sweep");

@@ -16,6 +16,7 @@
 
 #include "../../io/model.h"
 #include "../../io/outdir.h"
+#include "../../io/model_text.h"
 #include "../../io/sweep_key.h"
 #include "../../io/sweep_out.h"
 #include "../../io/map_sweep.h"
@@ -27,31 +28,6 @@
 
 #define GW_SWEEP_MAX_RUNS 100000
 #define GW_SWEEP_MAX_FILE (64L << 20)
-
-static char *read_text(const char *path, gw_error *err)
-{
-    FILE *f = fopen(path, "rb");
-    if (!f) { gw_fail(err, "%s: cannot open the model file", path); return NULL; }
-    size_t cap = 65536, len = 0;
-    char *buf = malloc(cap);
-    while (buf) {
-        size_t got = fread(buf + len, 1, cap - len - 1, f);
-        len += got;
-        if (got == 0) break;
-        if (len + 1 == cap) {
-            if (cap > (size_t)GW_SWEEP_MAX_FILE) { free(buf); buf = NULL; break; }
-            char *b = realloc(buf, cap * 2);
-            if (!b) { free(buf); buf = NULL; break; }
-            buf = b;
-            cap *= 2;
-        }
-    }
-    fclose(f);
-    if (!buf) { gw_fail(err, "%s: cannot read the model file (too large?)", path); return NULL; }
-    buf[len] = 0;
-    if (strlen(buf) != len) { free(buf); gw_fail(err, "%s: the model file contains a NUL byte", path); return NULL; }
-    return buf;
-}
 
 /* "<dir>/<model name>-sweep" beside the model. */
 static char *default_sweep_dir(const char *model_path)
@@ -431,7 +407,7 @@ int gw_cmd_sweep(const gw_sweep_args *a)
     }
 
     /* Keys must name numbers in this model (exit 1: a model problem). */
-    if (!(text = read_text(a->model_path, &err))) goto fail;
+    if (!(text = gw_model_read_text(a->model_path, GW_SWEEP_MAX_FILE, &err))) goto fail;
     for (int i = 0; i < nv; i++)
         if (gw_vary_resolve(&vary[i], text, a->model_path, &err) != 0) goto fail;
     if (gw_vary_check_overlap(vary, nv, &err) != 0) goto usage;
