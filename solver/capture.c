@@ -83,22 +83,85 @@ static int flow_order(const gw_flowfield *f, long *order, long *norder, long *nc
     return 0;
 }
 
-static void share_from_order(const gw_flowfield *f, const long *order, long norder, long ncycle,
+/* The cells in downstream-first order with their outflow faces listed in
+ * that order (east, west, south, north), built once and swept once per
+ * well: a sweep then streams through memory instead of recomputing every
+ * face from the grid. */
+typedef struct {
+    long *order;
+    long norder, ncycle;
+    long *ptr;        /* norder + 1: faces of order[i] are ptr[i] .. ptr[i+1]-1 */
+    long *to;         /* neighbour cell */
+    double *q;        /* flux out through the face, > 0 */
+} flow_graph;
+
+static void flow_graph_free(flow_graph *g)
+{
+    free(g->order);
+    free(g->ptr);
+    free(g->to);
+    free(g->q);
+    memset(g, 0, sizeof *g);
+}
+
+static int flow_graph_build(const gw_flowfield *f, flow_graph *fg, gw_error *err)
+{
+    size_t nc = gw_grid_ncells(&f->grid);
+    memset(fg, 0, sizeof *fg);
+    fg->order = malloc((nc ? nc : 1) * sizeof *fg->order);
+    if (!fg->order)
+        return gw_fail(err, "out of memory ordering cells for capture zones");
+    if (flow_order(f, fg->order, &fg->norder, &fg->ncycle, err) != 0) {
+        flow_graph_free(fg);
+        return -1;
+    }
+    long nf = 0;
+    for (long i = 0; i < fg->norder; i++)
+        for (int d = 0; d < 4; d++) {
+            long j;
+            if (face_out(f, (size_t)fg->order[i], d, &j) > 0.0)
+                nf++;
+        }
+    fg->ptr = malloc((size_t)(fg->norder + 1) * sizeof *fg->ptr);
+    fg->to = malloc((size_t)(nf ? nf : 1) * sizeof *fg->to);
+    fg->q = malloc((size_t)(nf ? nf : 1) * sizeof *fg->q);
+    if (!fg->ptr || !fg->to || !fg->q) {
+        flow_graph_free(fg);
+        return gw_fail(err, "out of memory ordering cells for capture zones");
+    }
+    long e = 0;
+    for (long i = 0; i < fg->norder; i++) {
+        fg->ptr[i] = e;
+        for (int d = 0; d < 4; d++) {
+            long j;
+            double q = face_out(f, (size_t)fg->order[i], d, &j);
+            if (q > 0.0) {   /* implies a neighbour j >= 0 */
+                fg->to[e] = j;
+                fg->q[e++] = q;
+            }
+        }
+    }
+    fg->ptr[fg->norder] = e;
+    return 0;
+}
+
+static void share_from_order(const gw_flowfield *f, const flow_graph *fg,
                              const double *gout, const double *fout, double *w)
 {
     size_t nc = gw_grid_ncells(&f->grid);
+    const long norder = fg->norder, ncycle = fg->ncycle;
     for (size_t k = 0; k < nc; k++)
         w[k] = 0.0;
     int sweeps = ncycle > 0 ? 50 : 1;
     for (int s = 0; s < sweeps; s++) {
         long from = s == 0 ? 0 : norder - ncycle;
         for (long i = from; i < norder; i++) {
-            size_t k = (size_t)order[i];
+            size_t k = (size_t)fg->order[i];
             double out = gout[k], num = fout[k];
-            for (int d = 0; d < 4; d++) {
-                long j;
-                double q = face_out(f, k, d, &j);
-                if (q > 0.0 && j >= 0 && f->active[j]) {
+            for (long e = fg->ptr[i]; e < fg->ptr[i + 1]; e++) {
+                long j = fg->to[e];
+                double q = fg->q[e];
+                if (f->active[j]) {
                     out += q;
                     num += q * w[j];
                 }
@@ -124,21 +187,20 @@ int gw_capture_share(const gw_flowfield *f, int feature, double *w, gw_error *er
 {
     size_t nc = gw_grid_ncells(&f->grid);
     double *fout = malloc(nc * sizeof *fout);
-    long *order = malloc(nc * sizeof *order);
-    long norder = 0, ncycle = 0;
+    flow_graph fg = {0};
     int rc = -1;
-    if (!fout || !order) {
+    if (!fout) {
         gw_fail(err, "out of memory computing capture shares");
         goto done;
     }
     feature_out(f, feature, fout, nc);
-    if (flow_order(f, order, &norder, &ncycle, err) != 0)
+    if (flow_graph_build(f, &fg, err) != 0)
         goto done;
-    share_from_order(f, order, norder, ncycle, f->sink, fout, w);
+    share_from_order(f, &fg, f->sink, fout, w);
     rc = 0;
 done:
     free(fout);
-    free(order);
+    flow_graph_free(&fg);
     return rc;
 }
 
@@ -171,8 +233,7 @@ static int usable_cell(const gw_flowfield *f, size_t k)
  * water that passes a weak sink of another feature, and wr[k], the share
  * of it such sinks leave (both flux-weighted: an estimate for the seeds
  * that are not tracked all the way). */
-static void reach_pass(const gw_flowfield *f, const long *order, long norder, long ncycle,
-                       const unsigned char *cls, const gw_track_options *t, double *r,
+static void reach_pass(const gw_flowfield *f, const flow_graph *fg, const unsigned char *cls, const gw_track_options *t, double *r,
                        double *pw, double *wr)
 {
     size_t nc = gw_grid_ncells(&f->grid);
@@ -180,23 +241,22 @@ static void reach_pass(const gw_flowfield *f, const long *order, long norder, lo
         r[k] = pw[k] = 0.0;
         wr[k] = 1.0;
     }
+    const long norder = fg->norder, ncycle = fg->ncycle;
     int sweeps = ncycle > 0 ? 50 : 1;
     for (int s = 0; s < sweeps; s++) {
         long from = s == 0 ? 0 : norder - ncycle;
         for (long i = from; i < norder; i++) {
-            size_t k = (size_t)order[i];
+            size_t k = (size_t)fg->order[i];
             double rk = 0.0, pk = 0.0, wk = 1.0, frac;
             if (cls[k] == CL_WELL) {
                 rk = 1.0;
             } else if (usable_cell(f, k) && !gw_track_sink_stops(f, (int)k, t, &frac)) {
                 double out = 0.0, num = 0.0, nump = 0.0, numw = 0.0;
-                for (int d = 0; d < 4; d++) {
-                    long j;
-                    double q = face_out(f, k, d, &j);
-                    if (!(q > 0.0))
-                        continue;
+                for (long e = fg->ptr[i]; e < fg->ptr[i + 1]; e++) {
+                    long j = fg->to[e];
+                    double q = fg->q[e];
                     out += q;
-                    if (j >= 0 && r[j] > 0.0) {
+                    if (r[j] > 0.0) {
                         double a = q * r[j];
                         num += a;
                         nump += a * pw[j];
@@ -492,15 +552,15 @@ static int cmp_double(const void *a, const void *b)
 
 /* Work arrays shared by all wells (length ncells). */
 typedef struct {
-    long *order;
-    long norder, ncycle;
+    flow_graph fg;
     double *fout, *w, *reach, *pw, *wr;
     unsigned char *cls, *cmask, *tmask;
+    gw_track_cells *cells;   /* compact per-cell tracking data */
 } workspace;
 
 static void workspace_free(workspace *ws)
 {
-    free(ws->order);
+    flow_graph_free(&ws->fg);
     free(ws->fout);
     free(ws->w);
     free(ws->reach);
@@ -509,12 +569,12 @@ static void workspace_free(workspace *ws)
     free(ws->cls);
     free(ws->cmask);
     free(ws->tmask);
+    gw_track_cells_free(ws->cells);
 }
 
 static int workspace_init(workspace *ws, size_t nc)
 {
     memset(ws, 0, sizeof *ws);
-    ws->order = malloc(nc * sizeof *ws->order);
     ws->fout = malloc(nc * sizeof *ws->fout);
     ws->w = malloc(nc * sizeof *ws->w);
     ws->reach = malloc(nc * sizeof *ws->reach);
@@ -523,7 +583,7 @@ static int workspace_init(workspace *ws, size_t nc)
     ws->cls = malloc(nc);
     ws->cmask = malloc(nc);
     ws->tmask = malloc(nc);
-    return ws->order && ws->fout && ws->w && ws->reach && ws->pw && ws->wr && ws->cls &&
+    return ws->fout && ws->w && ws->reach && ws->pw && ws->wr && ws->cls &&
            ws->cmask && ws->tmask ? 0 : -1;
 }
 
@@ -916,10 +976,11 @@ static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture
     L.topt.weak = o->weak;
     L.topt.weak_threshold = o->weak_threshold;
     L.topt.no_length = 1;   /* zones use where and when paths end, not how far they went */
+    L.topt.cells = ws->cells;
     /* Cells the well takes water from stop every path. */
     for (size_t k = 0; k < nc; k++)
         ws->cls[k] = ws->fout[k] > 0.0 ? CL_WELL : CL_BAND;
-    reach_pass(f, ws->order, ws->norder, ws->ncycle, ws->cls, &L.topt, ws->reach, ws->pw, ws->wr);
+    reach_pass(f, &ws->fg, ws->cls, &L.topt, ws->reach, ws->pw, ws->wr);
     int c0 = g->nx, c1 = -1, r0 = g->ny, r1 = -1;
     for (size_t k = 0; k < nc; k++) {
         double r = ws->reach[k];
@@ -1035,7 +1096,13 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
     for (int i = 0; i < opt->ntimes; i++)
         times[i] = opt->times[i];
     qsort(times, (size_t)opt->ntimes, sizeof *times, cmp_double);
-    if (flow_order(f, ws.order, &ws.norder, &ws.ncycle, err) != 0)
+    if (flow_graph_build(f, &ws.fg, err) != 0)
+        goto done;
+    gw_track_options to;
+    gw_track_options_default(&to);
+    to.weak = opt->weak;
+    to.weak_threshold = opt->weak_threshold;
+    if (!(ws.cells = gw_track_cells_new(f, &to, err)))
         goto done;
     for (int ft = 0; ft < p->nfeatures; ft++) {
         if (p->features[ft].type != GW_FEAT_WELL)
@@ -1062,7 +1129,7 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
             goto done;
         }
         feature_out(f, ft, fout, nc);
-        share_from_order(f, ws.order, ws.norder, ws.ncycle, gout, fout, w);
+        share_from_order(f, &ws.fg, gout, fout, w);
         /* Source split: each feature's inflow times the share reaching the well. */
         double area = g->dx * g->dy;
         for (size_t k = 0; k < nc; k++)

@@ -2,6 +2,7 @@
 
 #include <math.h>
 #include <stdlib.h>
+#include <string.h>
 
 const char *gw_track_end_name(gw_track_end e)
 {
@@ -28,6 +29,7 @@ void gw_track_options_default(gw_track_options *o)
     o->stop_mask = NULL;
     o->record_path = 0;
     o->no_length = 0;
+    o->cells = NULL;
 }
 
 void gw_track_result_free(gw_track_result *r)
@@ -71,33 +73,80 @@ static int usable(const gw_flowfield *f, int k)
 
 /* Time for a particle at p (distance from face 1, 0 <= p <= len) to leave
  * the cell along one axis, with velocity v1 at face 1 and v2 at face 2;
- * *dir = +1 (face 2) or -1 (face 1).  HUGE_VAL when it cannot leave. */
-static double exit_time(double v1, double v2, double len, double p, double *dir)
+ * dir = +1 (face 2) or -1 (face 1).  HUGE_VAL when it cannot leave.
+ * The logarithm is taken only when needed (exit_time): until then lo..hi
+ * brackets the time, since the speed moves monotonically from v_p to
+ * v_face, so the time lies between dist / v_p and dist / v_face. */
+typedef struct {
+    double t, lo, hi;     /* t valid when !lazy */
+    double z, a, dir;
+    int lazy;
+} exit_est;
+
+static void exit_estimate(double v1, double v2, double len, double p, exit_est *e)
 {
     double a = (v2 - v1) / len;
     double vp = v1 + a * p;
     double dist, z;
-    *dir = 0.0;
+    e->dir = 0.0;
+    e->lazy = 0;
+    e->t = e->lo = e->hi = HUGE_VAL;
     if (vp > 0.0) {
         if (v2 <= 0.0)
-            return HUGE_VAL;
-        *dir = 1.0;
+            return;
+        e->dir = 1.0;
         dist = len - p;
     } else if (vp < 0.0) {
         if (v1 >= 0.0)
-            return HUGE_VAL;
-        *dir = -1.0;
+            return;
+        e->dir = -1.0;
         dist = -p;
     } else {
-        return HUGE_VAL;
+        return;
     }
     /* v_face / v_p = 1 + a dist / vp; log1p keeps precision when a -> 0. */
     z = a * dist / vp;
-    if (fabs(z) < 1e-12)
-        return dist / vp;
+    if (fabs(z) < 1e-12) {
+        e->t = e->lo = e->hi = dist / vp;
+        return;
+    }
     if (z <= -1.0)
-        return HUGE_VAL;
-    return log1p(z) / a;
+        return;
+    /* t = (dist / vp) log1p(z) / z, and log1p(z) / z lies in [1/(1+z), 1]. */
+    double base = dist / vp, inv = 1.0 / (1.0 + z);
+    e->lo = inv < 1.0 ? base * inv : base;
+    e->hi = inv < 1.0 ? base : base * inv;
+    e->z = z;
+    e->a = a;
+    e->lazy = 1;
+}
+
+static double exit_time(exit_est *e)
+{
+    if (e->lazy) {
+        e->t = log1p(e->z) / e->a;
+        e->lazy = 0;
+    }
+    return e->t;
+}
+
+/* Exit times along x and y: exact for the axis left first; the other
+ * one is exact too unless the brackets show it comes clearly later, in
+ * which case it is reported as HUGE_VAL (nothing downstream needs it: the
+ * step is decided by the earlier time alone). */
+static void exit_times(exit_est *ex, exit_est *ey, double *tx, double *ty)
+{
+    const double margin = 1.0 + 1e-9;   /* far above the brackets' round-off */
+    if (ex->hi * margin < ey->lo) {
+        *tx = exit_time(ex);
+        *ty = HUGE_VAL;
+    } else if (ey->hi * margin < ex->lo) {
+        *tx = HUGE_VAL;
+        *ty = exit_time(ey);
+    } else {
+        *tx = exit_time(ex);
+        *ty = exit_time(ey);
+    }
 }
 
 /* Position after time t from p with linear velocity v1 + a s. */
@@ -176,26 +225,103 @@ int gw_track_sink_stops(const gw_flowfield *f, int k, const gw_track_options *o,
     return stop;
 }
 
+/* What tracking needs of one cell, in one record: face fluxes in the
+ * tracking direction, 1 / (saturated thickness x porosity), and the
+ * sink (source when backward) test.  Built on the fly from the flow field,
+ * or copied from a gw_track_cells table (one cache line per cell instead of
+ * about nine spread over the flow field's arrays) -- the same numbers
+ * either way, so the paths are the same. */
+typedef struct {
+    cell_flux c;
+    double ibn;           /* 0 when not usable */
+    double frac;          /* share of the throughput the sink takes (gw_track_sink_stops) */
+    unsigned char usable; /* active, saturated, porous */
+    unsigned char stops;  /* the sink stops paths (weak-sink rule) */
+    unsigned char sink;   /* has a sink (forward; source backward) at all */
+} cell_rec;
+
+struct gw_track_cells {
+    cell_rec *rec;        /* ncells */
+    int backward;
+    gw_weak_rule weak;
+    double weak_threshold;
+};
+
+static void build_rec(const gw_flowfield *f, int k, int col, int row, const gw_track_options *o,
+                      cell_rec *c)
+{
+    memset(c, 0, sizeof *c);
+    c->usable = (unsigned char)usable(f, k);
+    if (!c->usable)
+        return;
+    c->c = face_fluxes_at(f, k, col, row, o->backward ? -1.0 : 1.0);
+    c->ibn = 1.0 / (f->sat_thick[k] * f->porosity[k]);
+    c->stops = (unsigned char)gw_track_sink_stops(f, k, o, &c->frac);
+    c->sink = (o->backward ? f->src[k] : f->sink[k]) > 0.0;
+}
+
+gw_track_cells *gw_track_cells_new(const gw_flowfield *f, const gw_track_options *o,
+                                   gw_error *err)
+{
+    const gw_grid *g = &f->grid;
+    size_t nc = gw_grid_ncells(g);
+    gw_track_cells *t = malloc(sizeof *t);
+    cell_rec *rec = malloc(nc * sizeof *rec);
+    if (!t || !rec) {
+        free(t);
+        free(rec);
+        gw_fail(err, "out of memory preparing %zu cells for particle tracking", nc);
+        return NULL;
+    }
+    for (int row = 0; row < g->ny; row++)
+        for (int col = 0; col < g->nx; col++) {
+            int k = row * g->nx + col;
+            build_rec(f, k, col, row, o, &rec[k]);
+        }
+    t->rec = rec;
+    t->backward = o->backward;
+    t->weak = o->weak;
+    t->weak_threshold = o->weak_threshold;
+    return t;
+}
+
+void gw_track_cells_free(gw_track_cells *t)
+{
+    if (!t)
+        return;
+    free(t->rec);
+    free(t);
+}
+
+/* Record of cell k: from the table when it was prepared for these options. */
+static const cell_rec *get_rec(const gw_flowfield *f, int k, int col, int row,
+                               const gw_track_options *o, int use_table, cell_rec *tmp)
+{
+    if (use_table)
+        return &o->cells->rec[k];
+    build_rec(f, k, col, row, o, tmp);
+    return tmp;
+}
+
 /* Decide whether a path stops on entering (or starting in) cell k.
  * Returns the end reason or GW_END_NONE; updates the weak-sink record. */
-static gw_track_end check_cell(const gw_flowfield *f, int k, const gw_track_options *o,
+static gw_track_end check_cell(const cell_rec *c, int k, const gw_track_options *o,
                                gw_track_result *r)
 {
-    if (!usable(f, k))
+    if (!c->usable)
         return GW_END_INACTIVE;
     if (o->stop_mask && o->stop_mask[k]) {
         r->end_fraction = 1.0;
         r->stop_value = o->stop_mask[k];
         return GW_END_STOP_CELL;
     }
-    double frac;
-    if (gw_track_sink_stops(f, k, o, &frac)) {
-        r->end_fraction = frac;
+    if (c->stops) {
+        r->end_fraction = c->frac;
         return GW_END_SINK;
     }
-    if (frac > 0.0) {
+    if (c->frac > 0.0) {
         r->weak_passed++;
-        r->retained *= 1.0 - frac;
+        r->retained *= 1.0 - c->frac;
     }
     return GW_END_NONE;
 }
@@ -209,12 +335,15 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
         gw_track_options_default(&def);
         o = &def;
     }
+    const int use_table = o->cells && o->cells->backward == o->backward &&
+                          o->cells->weak == o->weak &&
+                          o->cells->weak_threshold == o->weak_threshold;
+    cell_rec tmp;
     double *keep_x = r->px, *keep_y = r->py;
     int keep_cap = r->cap;
     *r = (gw_track_result){.end = GW_END_NONE, .x = x, .y = y, .cell = -1, .feature = -1,
                            .retained = 1.0, .px = keep_x, .py = keep_y, .cap = keep_cap};
     long max_steps = o->max_steps > 0 ? o->max_steps : 4L * (g->nx + g->ny) + 1000;
-    double sgn = o->backward ? -1.0 : 1.0;
     int col, row;
     if (o->record_path && push_vertex(r, x, y, err) != 0)
         return -1;
@@ -224,7 +353,8 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
     }
     int k = row * g->nx + col;
     r->cell = k;
-    gw_track_end e = check_cell(f, k, o, r);
+    const cell_rec *c = get_rec(f, k, col, row, o, use_table, &tmp);
+    gw_track_end e = check_cell(c, k, o, r);
     const double ytop = gw_grid_ytop(g);
     double px = x - (g->x0 + col * g->dx), py = y - (ytop - (row + 1) * g->dy);
     if (px < 0) px = 0;
@@ -237,20 +367,20 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
             e = GW_END_MAX_STEPS;
             break;
         }
-        cell_flux c = face_fluxes_at(f, k, col, row, sgn);   /* no division by nx */
-        double ibn = 1.0 / (f->sat_thick[k] * f->porosity[k]);   /* one division per cell */
-        double ix = ibn / g->dy, iy = ibn / g->dx;
-        double vx1 = c.fx1 * ix, vx2 = c.fx2 * ix;
-        double vy1 = c.fy1 * iy, vy2 = c.fy2 * iy;
-        double dirx, diry;
-        double tx = exit_time(vx1, vx2, g->dx, px, &dirx);
-        double ty = exit_time(vy1, vy2, g->dy, py, &diry);
+        double ix = c->ibn / g->dy, iy = c->ibn / g->dx;
+        double vx1 = c->c.fx1 * ix, vx2 = c->c.fx2 * ix;
+        double vy1 = c->c.fy1 * iy, vy2 = c->c.fy2 * iy;
+        exit_est ex, ey;
+        double tx, ty;
+        exit_estimate(vx1, vx2, g->dx, px, &ex);
+        exit_estimate(vy1, vy2, g->dy, py, &ey);
+        exit_times(&ex, &ey, &tx, &ty);
+        const double dirx = ex.dir, diry = ey.dir;
         double t = tx < ty ? tx : ty;
         double remain = o->max_time > 0 ? o->max_time - r->time : HUGE_VAL;
         if (t == HUGE_VAL && remain == HUGE_VAL) {
             /* Cannot leave: the water ends here, in a sink or stagnant. */
-            double s = o->backward ? f->src[k] : f->sink[k];
-            if (s > 0.0) {
+            if (c->sink) {
                 e = GW_END_SINK;
                 if (r->end_fraction == 0.0) r->end_fraction = 1.0;
             } else {
@@ -290,7 +420,8 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
             break;
         }
         int nk = nrow * g->nx + ncol;
-        if (!usable(f, nk)) {
+        c = get_rec(f, nk, ncol, nrow, o, use_table, &tmp);
+        if (!c->usable) {
             px = nx;
             py = ny;
             e = GW_END_INACTIVE;
@@ -303,7 +434,7 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
         row = nrow;
         k = nk;
         r->cell = k;
-        e = check_cell(f, k, o, r);
+        e = check_cell(c, k, o, r);
     }
     r->end = e;
     r->x = g->x0 + col * g->dx + px;

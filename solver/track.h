@@ -54,9 +54,21 @@ typedef struct {
     int record_path;              /* keep the vertices of the path */
     int no_length;                /* skip the path length (result length 0): one square
                                    * root less per cell, for callers that ignore it */
+    /* Optional, borrowed: per-cell data from gw_track_cells_new for the
+     * same flow field; used when its direction and weak-sink rule match
+     * these options.  Same paths, faster when many are tracked. */
+    const struct gw_track_cells *cells;
 } gw_track_options;
 
 void gw_track_options_default(gw_track_options *o);
+
+/* Tracking data of every cell in one compact table (about 64 bytes a
+ * cell), for callers that track many paths on one flow field: direction
+ * and weak-sink rule are taken from o.  NULL on allocation failure. */
+typedef struct gw_track_cells gw_track_cells;
+gw_track_cells *gw_track_cells_new(const gw_flowfield *f, const gw_track_options *o,
+                                   gw_error *err);
+void gw_track_cells_free(gw_track_cells *t);
 
 typedef struct {
     gw_track_end end;

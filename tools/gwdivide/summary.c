@@ -4,6 +4,7 @@
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "cli.h"
 
@@ -76,15 +77,25 @@ static void print_divides(FILE *f, const gw_results *r, const char *Q)
     const char *L = m->length_unit ? m->length_unit : "";
     const char *T = m->time_unit ? m->time_unit : "";
     fprintf(f, "\nDivides and catchments\n");
+    int nshort = 0;
     for (int i = 0; i < a->divides.n; i++) {
         const gw_divide *d = &a->divides.d[i];
         double len = 0.0;
         for (int k = 0; k + 1 < d->npts; k++)
             len += hypot(d->xy[2 * k + 2] - d->xy[2 * k], d->xy[2 * k + 3] - d->xy[2 * k + 1]);
+        /* Pieces shorter than two cells, where three catchments meet, are noise in
+         * a summary; report.json keeps them all. */
+        if (len < 2.0 * fmin(r->problem->grid.dx, r->problem->grid.dy)) {
+            nshort++;
+            continue;
+        }
         fprintf(f, "  divide between %s and %s: %.4g %s long, from (%.1f, %.1f) to (%.1f, %.1f)%s\n",
                 gw_results_feature_name(r, d->a), gw_results_feature_name(r, d->b), len, L, d->xy[0], d->xy[1],
                 d->xy[2 * d->npts - 2], d->xy[2 * d->npts - 1], d->closed ? " (closed loop)" : "");
     }
+    if (nshort > 0)
+        fprintf(f, "  (%d divide piece%s shorter than two cells not listed; see report.json)\n", nshort,
+                nshort == 1 ? "" : "s");
     for (int i = 0; i < a->nno_divide; i++) {
         char line[512];
         gw_no_divide_describe(&a->no_divide[i], gw_results_feature_name(r, a->no_divide[i].losing),
@@ -159,6 +170,23 @@ static void print_section(FILE *f, const gw_results *r, const char *Q)
                     gw_system_kind_name((gw_system_kind)k), n[k], n[k] == 1 ? " " : "s", q[k], Q, depth[k], L);
 }
 
+/* The main files this run wrote, so the user knows what to open first. */
+static void print_written(FILE *f, const gw_results *r, const char *out_dir)
+{
+    static const char *const names[] = { "report.html", "report.json", "budget.csv", "heads.tif", "results.gpkg",
+                                         "head.png", "catchments.png", "section.png", "budget.png" };
+    fprintf(f, "\nResults in %s/:", out_dir);
+    for (size_t i = 0; i < sizeof names / sizeof names[0]; i++) {
+        char path[4096];
+        snprintf(path, sizeof path, "%s/%s", out_dir, names[i]);
+        if (access(path, F_OK) == 0)
+            fprintf(f, " %s", names[i]);
+    }
+    if (r->model->ntransects > 0)
+        fprintf(f, " transect_*.csv");
+    fprintf(f, "\n");
+}
+
 void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir)
 {
     const gw_model *m = r->model;
@@ -230,5 +258,5 @@ void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir)
         fprintf(f, "\nCautions: screening tool; steady state, 2-D Dupuit flow; divides and capture zones are\n"
                    "sensitive to recharge and conductivity; protection areas are a matter for local regulation\n"
                    "and licensed professional judgement (full text in report.json).\n");
-    fprintf(f, "\nResults in %s/ (report.json, budget.csv, heads.tif)\n", out_dir);
+    print_written(f, r, out_dir);
 }
