@@ -3,8 +3,6 @@
 #include <pthread.h>
 #include <stdatomic.h>
 #include <string.h>
-#include <stdio.h>
-#include <stdlib.h>
 #include <unistd.h>
 
 int gw_default_threads(void)
@@ -55,8 +53,6 @@ int gw_parallel_for(int threads, long n, gw_item_fn fn, void *ctx, gw_error *err
 {
     if (n <= 0)
         return 0;
-    { static long calls, items; calls++; items += n; if (getenv("GW_PF")) fprintf(stderr, "pf %ld %ld (n %ld)\n", calls, items, n); }
-    if (getenv("GW_THREADS")) threads = atoi(getenv("GW_THREADS"));
     if (threads <= 0)
         threads = gw_default_threads();
     if (threads > GW_MAX_THREADS)

@@ -83,9 +83,9 @@ typedef struct {
     int lazy;
 } exit_est;
 
-static void exit_estimate(double v1, double v2, double len, double p, exit_est *e)
+/* a = (v2 - v1) / len, the velocity gradient, computed by the caller. */
+static void exit_estimate(double v1, double v2, double a, double len, double p, exit_est *e)
 {
-    double a = (v2 - v1) / len;
     double vp = v1 + a * p;
     double dist, z;
     e->dir = 0.0;
@@ -150,9 +150,8 @@ static void exit_times(exit_est *ex, exit_est *ey, double *tx, double *ty)
 }
 
 /* Position after time t from p with linear velocity v1 + a s. */
-static double advance(double v1, double v2, double len, double p, double t)
+static double advance(double v1, double a, double len, double p, double t)
 {
-    double a = (v2 - v1) / len;
     double vp = v1 + a * p;
     double at = a * t;
     double np = fabs(at) < 1e-12 ? p + vp * t : p + vp * expm1(at) / a;
@@ -232,13 +231,13 @@ int gw_track_sink_stops(const gw_flowfield *f, int k, const gw_track_options *o,
  * about nine spread over the flow field's arrays) -- the same numbers
  * either way, so the paths are the same. */
 typedef struct {
-    cell_flux c;
-    double ibn;           /* 0 when not usable */
+    double vx1, vx2, vy1, vy2;   /* seepage velocity at the faces, tracking direction */
+    double ax, ay;               /* velocity gradients (v2 - v1) / length */
     double frac;          /* share of the throughput the sink takes (gw_track_sink_stops) */
     unsigned char usable; /* active, saturated, porous */
     unsigned char stops;  /* the sink stops paths (weak-sink rule) */
     unsigned char sink;   /* has a sink (forward; source backward) at all */
-} cell_rec;
+} cell_rec;   /* 59 bytes: one 64-byte cache line */
 
 struct gw_track_cells {
     cell_rec *rec;        /* ncells */
@@ -254,8 +253,16 @@ static void build_rec(const gw_flowfield *f, int k, int col, int row, const gw_t
     c->usable = (unsigned char)usable(f, k);
     if (!c->usable)
         return;
-    c->c = face_fluxes_at(f, k, col, row, o->backward ? -1.0 : 1.0);
-    c->ibn = 1.0 / (f->sat_thick[k] * f->porosity[k]);
+    const gw_grid *g = &f->grid;
+    cell_flux q = face_fluxes_at(f, k, col, row, o->backward ? -1.0 : 1.0);
+    double ibn = 1.0 / (f->sat_thick[k] * f->porosity[k]);
+    double ix = ibn / g->dy, iy = ibn / g->dx;
+    c->vx1 = q.fx1 * ix;
+    c->vx2 = q.fx2 * ix;
+    c->vy1 = q.fy1 * iy;
+    c->vy2 = q.fy2 * iy;
+    c->ax = (c->vx2 - c->vx1) / g->dx;
+    c->ay = (c->vy2 - c->vy1) / g->dy;
     c->stops = (unsigned char)gw_track_sink_stops(f, k, o, &c->frac);
     c->sink = (o->backward ? f->src[k] : f->sink[k]) > 0.0;
 }
@@ -266,7 +273,9 @@ gw_track_cells *gw_track_cells_new(const gw_flowfield *f, const gw_track_options
     const gw_grid *g = &f->grid;
     size_t nc = gw_grid_ncells(g);
     gw_track_cells *t = malloc(sizeof *t);
-    cell_rec *rec = malloc(nc * sizeof *rec);
+    /* Records aligned to cache lines (size rounded up for aligned_alloc). */
+    size_t bytes = (nc ? nc : 1) * sizeof(cell_rec);
+    cell_rec *rec = sizeof(cell_rec) == 64 ? aligned_alloc(64, bytes) : malloc(bytes);
     if (!t || !rec) {
         free(t);
         free(rec);
@@ -367,13 +376,11 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
             e = GW_END_MAX_STEPS;
             break;
         }
-        double ix = c->ibn / g->dy, iy = c->ibn / g->dx;
-        double vx1 = c->c.fx1 * ix, vx2 = c->c.fx2 * ix;
-        double vy1 = c->c.fy1 * iy, vy2 = c->c.fy2 * iy;
+        const double vx1 = c->vx1, vy1 = c->vy1, ax = c->ax, ay = c->ay;
         exit_est ex, ey;
         double tx, ty;
-        exit_estimate(vx1, vx2, g->dx, px, &ex);
-        exit_estimate(vy1, vy2, g->dy, py, &ey);
+        exit_estimate(vx1, c->vx2, ax, g->dx, px, &ex);
+        exit_estimate(vy1, c->vy2, ay, g->dy, py, &ey);
         exit_times(&ex, &ey, &tx, &ty);
         const double dirx = ex.dir, diry = ey.dir;
         double t = tx < ty ? tx : ty;
@@ -389,8 +396,8 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
             break;
         }
         if (remain <= t) {
-            double nx = advance(vx1, vx2, g->dx, px, remain);
-            double ny = advance(vy1, vy2, g->dy, py, remain);
+            double nx = advance(vx1, ax, g->dx, px, remain);
+            double ny = advance(vy1, ay, g->dy, py, remain);
             if (!o->no_length)
                 r->length += sqrt((nx - px) * (nx - px) + (ny - py) * (ny - py));
             px = nx;
@@ -402,8 +409,8 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
         /* Leave through the face reached first (both at a corner). */
         int exit_x = tx <= ty * (1.0 + 1e-12);
         int exit_y = ty <= tx * (1.0 + 1e-12);
-        double nx = exit_x ? (dirx > 0 ? g->dx : 0.0) : advance(vx1, vx2, g->dx, px, t);
-        double ny = exit_y ? (diry > 0 ? g->dy : 0.0) : advance(vy1, vy2, g->dy, py, t);
+        double nx = exit_x ? (dirx > 0 ? g->dx : 0.0) : advance(vx1, ax, g->dx, px, t);
+        double ny = exit_y ? (diry > 0 ? g->dy : 0.0) : advance(vy1, ay, g->dy, py, t);
         if (!o->no_length)
             r->length += sqrt((nx - px) * (nx - px) + (ny - py) * (ny - py));
         r->time += t;

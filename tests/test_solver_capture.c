@@ -16,6 +16,9 @@
  *    when rho > 1 (integrating the image-well inflow along the stream; the
  *    same result as Wilson 1993, from memory).
  *
+ *  - Tracking runs on several threads; the zones must be the same, bit
+ *    for bit, for 1, 2 and 3 threads.
+ *
  * The heads on a ring of fixed-head cells around each grid are the
  * analytic ones, so the boundary is exact and the tests measure the
  * interior scheme, the tracking and the zone tracing. */
@@ -373,6 +376,73 @@ static void test_two_wells(void **state)
     drop(&m);
 }
 
+/* Every number of two zones equal, bit for bit. */
+static void same_zone(const gw_capzone *a, const gw_capzone *b)
+{
+    assert_true(a->time == b->time && a->area == b->area);
+    assert_int_equal(a->nring, b->nring);
+    assert_int_equal(a->outer, b->outer);
+    for (int i = 0; i < a->nring; i++) {
+        assert_int_equal(a->ring[i].n, b->ring[i].n);
+        assert_true(a->ring[i].area == b->ring[i].area);
+        assert_memory_equal(a->ring[i].x, b->ring[i].x, (size_t)a->ring[i].n * sizeof(double));
+        assert_memory_equal(a->ring[i].y, b->ring[i].y, (size_t)a->ring[i].n * sizeof(double));
+    }
+}
+
+static void test_threads_same_zones(void **state)
+{
+    (void)state;
+    /* The two-well field above, with travel-time zones. */
+    const double q = 0.01, Q = 30.0;
+    field fd = {.qreg = q, .qw = Q, .nw = 2, .wx = {0.0, 0.0}, .wy = {-100.0, 100.0}};
+    model m;
+    build(&m, &fd, 160, 60, 60, 60);
+    const double times[2] = {2000.0, 8000.0};
+    gw_capture c[3];
+    gw_error err = {{0}};
+    for (int t = 0; t < 3; t++) {
+        gw_capture_options o;
+        gw_capture_options_default(&o);
+        o.times = times;
+        o.ntimes = 2;
+        o.threads = t + 1;
+        if (gw_capture_compute(m.p, &m.ff, &o, &c[t], &err) != 0) fail_msg("capture: %s", err.msg);
+    }
+    for (int t = 1; t < 3; t++) {
+        assert_int_equal(c[t].nzone, c[0].nzone);
+        for (int i = 0; i < c[0].nzone; i++) {
+            const gw_capture_zone *a = &c[0].zone[i], *b = &c[t].zone[i];
+            assert_int_equal(a->seeds, b->seeds);
+            assert_int_equal(a->classified, b->classified);
+            assert_memory_equal(a->ends, b->ends, sizeof a->ends);
+            assert_true(a->weak_pass_share == b->weak_pass_share &&
+                        a->min_retained == b->min_retained);
+            assert_memory_equal(a->source, b->source, (size_t)c[0].nfeatures * sizeof(double));
+            same_zone(&a->capture, &b->capture);
+            assert_int_equal(a->nttz, b->nttz);
+            for (int k = 0; k < a->nttz; k++)
+                same_zone(&a->ttz[k], &b->ttz[k]);
+        }
+    }
+    /* Not vacuous: both wells have a capture zone and both time zones,
+     * found by tracking. */
+    assert_int_equal(c[0].nzone, 2);
+    for (int i = 0; i < 2; i++) {
+        assert_true(c[0].zone[i].seeds > 0 && c[0].zone[i].capture.nring > 0);
+        assert_int_equal(c[0].zone[i].nttz, 2);
+        assert_true(c[0].zone[i].ttz[0].area > 0.0 &&
+                    c[0].zone[i].ttz[0].area < c[0].zone[i].ttz[1].area);
+    }
+    print_message("    1, 2 and 3 threads: identical zones (%ld + %ld seeds tracked, %d + %d ring vertices)\n",
+                  c[0].zone[0].seeds, c[0].zone[1].seeds,
+                  c[0].zone[0].capture.ring[c[0].zone[0].capture.outer].n,
+                  c[0].zone[1].capture.ring[c[0].zone[1].capture.outer].n);
+    for (int t = 0; t < 3; t++)
+        gw_capture_free(&c[t]);
+    drop(&m);
+}
+
 /* Ring structure: holes belong to the smallest outer ring around them
  * (plane geometry; the rings below are squares with known areas). */
 static void test_ring_parents(void **state)
@@ -401,6 +471,7 @@ int main(void)
         cmocka_unit_test(test_recharge_fed_well),
         cmocka_unit_test(test_two_wells),
         cmocka_unit_test(test_ring_parents),
+        cmocka_unit_test(test_threads_same_zones),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

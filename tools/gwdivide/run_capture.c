@@ -1,11 +1,13 @@
 /* The capture-zone stage of `gwdivide run`: flow field, Pollock tracking
  * and zone tracing for every pumping well, plus the warnings a reader of
  * the zones needs (weak well cells, weak sinks passed, unfinished paths). */
+#include <errno.h>
 #include <stdio.h>
 #include <stdlib.h>
 
 #include "../../solver/capture.h"
 #include "../../solver/flowfield.h"
+#include "../../solver/parallel.h"
 #include "cli.h"
 
 static int warn_zone(gw_results *r, const gw_capture_zone *z, gw_error *err)
@@ -35,17 +37,38 @@ static int warn_zone(gw_results *r, const gw_capture_zone *z, gw_error *err)
     return 0;
 }
 
+/* Threads for tracking: GW_THREADS when set (1 to GW_MAX_THREADS), else
+ * 0 (the solver's default, the online CPUs up to 8).  The zones do not
+ * depend on it. */
+static int capture_threads(int *threads, gw_error *err)
+{
+    const char *v = getenv("GW_THREADS");
+    *threads = 0;
+    if (!v || !*v)
+        return 0;
+    char *end;
+    errno = 0;
+    long n = strtol(v, &end, 10);
+    if (errno || *end || n < 1 || n > GW_MAX_THREADS)
+        return gw_fail(err, "environment variable GW_THREADS is '%s'; expected a whole number "
+                            "of threads from 1 to %d", v, GW_MAX_THREADS);
+    *threads = (int)n;
+    return 0;
+}
+
 int gw_run_capture(gw_results *r, gw_error *err)
 {
     const gw_model *m = r->model;
     const gw_problem *p = r->problem;
     if (!m->capture || p->type == GW_SECTION || p->nwells == 0 || !r->have_solution)
         return 0;
+    gw_capture_options o;
+    gw_capture_options_default(&o);
+    if (capture_threads(&o.threads, err) != 0)
+        return -1;
     gw_flowfield ff;
     if (gw_flowfield_compute(p, &r->solution, &ff, err) != 0)
         return -1;
-    gw_capture_options o;
-    gw_capture_options_default(&o);
     o.times = m->travel_times;
     o.ntimes = m->ntravel_times;
     gw_capture *c = calloc(1, sizeof *c);
