@@ -1,6 +1,6 @@
 /* Particle tracking by Pollock's semi-analytical method (Pollock 1988,
  * "Semianalytical computation of path lines for finite-difference models",
- * Ground Water 26(6); Pollock 1989, the MODPATH documentation, USGS OFR
+ * Ground Water 26(6); Pollock 1989, USGS Open-File Report
  * 89-381).  Within a cell each velocity component varies linearly between
  * its two faces, so the time to reach each face has a closed form
  * (t = ln(v_face / v_p) / A, A = velocity gradient) and no step size is
