@@ -51,7 +51,8 @@ int gw_write_grid_tif(const char *path, const gw_grid *g, const double *v, const
     if (!drv) { gw_fail(err, "GDAL has no GeoTIFF driver"); goto done; }
     if (crs && *crs && !(srs = make_srs(crs, err))) goto done;
 
-    char *opts[] = {"COMPRESS=DEFLATE", "PREDICTOR=3", "TILED=YES", NULL};
+    /* NUM_THREADS: tiles are compressed side by side; the file is the same. */
+    char *opts[] = {"COMPRESS=DEFLATE", "PREDICTOR=3", "TILED=YES", "NUM_THREADS=ALL_CPUS", NULL};
     ds = GDALCreate(drv, path, g->nx, g->ny, 1, GDT_Float64, opts);
     if (!ds) { gw_fail(err, "cannot create %s: %s", path, gw_gdal_msg()); goto done; }
     /* North-up: the first row is the north edge, pixel height negative. */

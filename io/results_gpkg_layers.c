@@ -292,10 +292,14 @@ int gw_gpkg_write_divides(gw_gpkg *g, const gw_results *r, const gw_divide_analy
     /* mixed_area: cells sending only part of their water to the feature.
      * The polygon (dominant cells) and the share-weighted report area can
      * differ by at most this much, since they agree on every other cell. */
-    int rc = gw_flowfield_compute(p, &r->solution, &ff, err);
+    /* The catchment analysis keeps these areas; recompute them only when
+     * it did not. */
+    int rc = c->mixed_area ? 0 : gw_flowfield_compute(p, &r->solution, &ff, err);
     for (int f = 0; rc == 0 && f < p->nfeatures; f++) {
         double mixed = 0.0;
-        if (c->dominant && c->area && c->area[f] > 0.0) {
+        if (c->mixed_area) {
+            mixed = c->dominant && c->area && c->area[f] > 0.0 ? c->mixed_area[f] : 0.0;
+        } else if (c->dominant && c->area && c->area[f] > 0.0) {
             rc = gw_catchment_share(p, &ff, f, share, err);
             for (size_t k = 0; rc == 0 && k < ncell; k++)
                 if (share[k] > 1e-12 && share[k] < 1.0 - 1e-12) mixed += p->grid.dx * p->grid.dy;

@@ -233,8 +233,9 @@ static int usable_cell(const gw_flowfield *f, size_t k)
  * water that passes a weak sink of another feature, and wr[k], the share
  * of it such sinks leave (both flux-weighted: an estimate for the seeds
  * that are not tracked all the way). */
-static void reach_pass(const gw_flowfield *f, const flow_graph *fg, const unsigned char *cls, const gw_track_options *t, double *r,
-                       double *pw, double *wr)
+static void reach_pass(const gw_flowfield *f, const flow_graph *fg, const unsigned char *cls,
+                       const unsigned char *thru, const double *sfrac, double *r, double *pw,
+                       double *wr)
 {
     size_t nc = gw_grid_ncells(&f->grid);
     for (size_t k = 0; k < nc; k++) {
@@ -250,7 +251,8 @@ static void reach_pass(const gw_flowfield *f, const flow_graph *fg, const unsign
             double rk = 0.0, pk = 0.0, wk = 1.0, frac;
             if (cls[k] == CL_WELL) {
                 rk = 1.0;
-            } else if (usable_cell(f, k) && !gw_track_sink_stops(f, (int)k, t, &frac)) {
+            } else if (thru[k]) {
+                frac = sfrac[k];
                 double out = 0.0, num = 0.0, nump = 0.0, numw = 0.0;
                 for (long e = fg->ptr[i]; e < fg->ptr[i + 1]; e++) {
                     long j = fg->to[e];
@@ -550,17 +552,21 @@ static int cmp_double(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
-/* Work arrays shared by all wells (length ncells). */
+/* Work arrays of one well (length ncells), with the flow graph, cell table
+ * and sink rule all wells share (read only). */
 typedef struct {
-    flow_graph fg;
+    const flow_graph *fg;
+    /* thru[k]: a path may pass cell k (usable, its sink does not stop it,
+     * gw_track_sink_stops); sfrac[k]: the share that sink takes there. */
+    const unsigned char *thru;
+    const double *sfrac;
     double *fout, *w, *reach, *pw, *wr;
     unsigned char *cls, *cmask, *tmask;
-    gw_track_cells *cells;   /* compact per-cell tracking data */
+    const gw_track_cells *cells;   /* compact per-cell tracking data */
 } workspace;
 
 static void workspace_free(workspace *ws)
 {
-    flow_graph_free(&ws->fg);
     free(ws->fout);
     free(ws->w);
     free(ws->reach);
@@ -569,7 +575,6 @@ static void workspace_free(workspace *ws)
     free(ws->cls);
     free(ws->cmask);
     free(ws->tmask);
-    gw_track_cells_free(ws->cells);
 }
 
 static int workspace_init(workspace *ws, size_t nc)
@@ -980,7 +985,7 @@ static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture
     /* Cells the well takes water from stop every path. */
     for (size_t k = 0; k < nc; k++)
         ws->cls[k] = ws->fout[k] > 0.0 ? CL_WELL : CL_BAND;
-    reach_pass(f, &ws->fg, ws->cls, &L.topt, ws->reach, ws->pw, ws->wr);
+    reach_pass(f, ws->fg, ws->cls, ws->thru, ws->sfrac, ws->reach, ws->pw, ws->wr);
     int c0 = g->nx, c1 = -1, r0 = g->ny, r1 = -1;
     for (size_t k = 0; k < nc; k++) {
         double r = ws->reach[k];
@@ -1068,6 +1073,73 @@ done:
     return rc;
 }
 
+/* The wells, each with its own work arrays: zones of different wells are
+ * independent, so they are computed side by side (each also tracking on
+ * several threads), and every zone is the same whatever ran where. */
+typedef struct {
+    const gw_problem *p;
+    const gw_flowfield *f;
+    const gw_capture_options *opt;
+    const flow_graph *fg;
+    const gw_track_cells *cells;
+    const unsigned char *thru;
+    const double *sfrac;
+    const double *times;
+    gw_capture *out;
+} wells_job;
+
+static int well_item(void *ctx, long i, gw_error *err)
+{
+    const wells_job *j = ctx;
+    const gw_problem *p = j->p;
+    const gw_flowfield *f = j->f;
+    const gw_grid *g = &p->grid;
+    size_t nc = gw_grid_ncells(g);
+    const double *gin = f->src, *gout = f->sink;
+    gw_capture_zone *cz = &j->out->zone[i];
+    workspace ws;
+    if (workspace_init(&ws, nc) != 0) {
+        workspace_free(&ws);
+        return gw_fail(err, "out of memory for capture zones");
+    }
+    ws.fg = j->fg;
+    ws.cells = j->cells;
+    ws.thru = j->thru;
+    ws.sfrac = j->sfrac;
+    double *fout = ws.fout, *w = ws.w;
+    feature_out(f, cz->feature, fout, nc);
+    share_from_order(f, ws.fg, gout, fout, w);
+    /* Source split: each feature's inflow times the share reaching the well. */
+    double area = g->dx * g->dy;
+    for (size_t k = 0; k < nc; k++)
+        if (p->active[k] && p->recharge[k] > 0.0)
+            cz->source[0] += p->recharge[k] * area * w[k];
+    for (int e = 0; e < f->nexch; e++) {
+        const gw_exchange *x = &f->exch[e];
+        if (x->q > 0.0 && x->feature >= 0 && x->feature < p->nfeatures)
+            cz->source[x->feature] += x->q * w[x->cell];
+    }
+    /* How strong a sink the well's cells are. */
+    double take = 0.0, thru = 0.0;
+    for (size_t k = 0; k < nc; k++) {
+        if (!(fout[k] > 0.0))
+            continue;
+        take += fout[k];
+        thru += gin[k];
+        for (int d = 0; d < 4; d++) {
+            long nb;
+            double q = face_out(f, k, d, &nb);
+            if (q < 0.0) thru -= q;
+        }
+    }
+    cz->well_cell_share = thru > 0.0 ? (take < thru ? take / thru : 1.0) : 1.0;
+    int rc = one_well(p, f, j->opt, &ws, j->times, cz, err);
+    if (rc != 0)
+        gw_fail_prefix(err, "capture zone of well '%s': ", p->features[cz->feature].name);
+    workspace_free(&ws);
+    return rc;
+}
+
 int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
                        const gw_capture_options *opt, gw_capture *out, gw_error *err)
 {
@@ -1081,29 +1153,21 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
         if (!(opt->times[i] > 0.0) || !isfinite(opt->times[i]))
             return gw_fail(err, "travel time %d is %g; travel times must be positive", i + 1,
                            opt->times[i]);
-    const gw_grid *g = &p->grid;
-    size_t nc = gw_grid_ncells(g);
     out->nfeatures = p->nfeatures;
-    const double *gin = f->src, *gout = f->sink;
     double *times = malloc((size_t)(opt->ntimes > 0 ? opt->ntimes : 1) * sizeof *times);
-    workspace ws;
+    flow_graph fg = {0};
+    gw_track_cells *cells = NULL;
+    unsigned char *thru = NULL;
+    double *sfrac = NULL;
     int rc = -1;
-    if (workspace_init(&ws, nc) != 0 || !times) {
+    if (!times) {
         gw_fail(err, "out of memory for capture zones");
         goto done;
     }
-    double *fout = ws.fout, *w = ws.w;
     for (int i = 0; i < opt->ntimes; i++)
         times[i] = opt->times[i];
     qsort(times, (size_t)opt->ntimes, sizeof *times, cmp_double);
-    if (flow_graph_build(f, &ws.fg, err) != 0)
-        goto done;
-    gw_track_options to;
-    gw_track_options_default(&to);
-    to.weak = opt->weak;
-    to.weak_threshold = opt->weak_threshold;
-    if (!(ws.cells = gw_track_cells_new(f, &to, err)))
-        goto done;
+    /* One zone per pumping well feature, in feature order. */
     for (int ft = 0; ft < p->nfeatures; ft++) {
         if (p->features[ft].type != GW_FEAT_WELL)
             continue;
@@ -1128,42 +1192,42 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
             gw_fail(err, "out of memory for capture zones");
             goto done;
         }
-        feature_out(f, ft, fout, nc);
-        share_from_order(f, &ws.fg, gout, fout, w);
-        /* Source split: each feature's inflow times the share reaching the well. */
-        double area = g->dx * g->dy;
-        for (size_t k = 0; k < nc; k++)
-            if (p->active[k] && p->recharge[k] > 0.0)
-                cz->source[0] += p->recharge[k] * area * w[k];
-        for (int i = 0; i < f->nexch; i++) {
-            const gw_exchange *e = &f->exch[i];
-            if (e->q > 0.0 && e->feature >= 0 && e->feature < p->nfeatures)
-                cz->source[e->feature] += e->q * w[e->cell];
-        }
-        /* How strong a sink the well's cells are. */
-        double take = 0.0, thru = 0.0;
-        for (size_t k = 0; k < nc; k++) {
-            if (!(fout[k] > 0.0))
-                continue;
-            take += fout[k];
-            thru += gin[k];
-            for (int d = 0; d < 4; d++) {
-                long j;
-                double q = face_out(f, k, d, &j);
-                if (q < 0.0) thru -= q;
-            }
-        }
-        cz->well_cell_share = thru > 0.0 ? (take < thru ? take / thru : 1.0) : 1.0;
-        if (one_well(p, f, opt, &ws, times, cz, err) != 0) {
-            gw_fail_prefix(err, "capture zone of well '%s': ", p->features[ft].name);
-            goto done;
-        }
     }
+    if (out->nzone == 0) {
+        rc = 0;
+        goto done;
+    }
+    if (flow_graph_build(f, &fg, err) != 0)
+        goto done;
+    gw_track_options to;
+    gw_track_options_default(&to);
+    to.weak = opt->weak;
+    to.weak_threshold = opt->weak_threshold;
+    if (!(cells = gw_track_cells_new(f, &to, err)))
+        goto done;
+    size_t nc = gw_grid_ncells(&p->grid);
+    thru = malloc(nc ? nc : 1);
+    sfrac = malloc((nc ? nc : 1) * sizeof *sfrac);
+    if (!thru || !sfrac) {
+        gw_fail(err, "out of memory for capture zones");
+        goto done;
+    }
+    for (size_t k = 0; k < nc; k++) {
+        sfrac[k] = 0.0;
+        thru[k] = usable_cell(f, k) && !gw_track_sink_stops(f, (int)k, &to, &sfrac[k]);
+    }
+    wells_job job = {.p = p, .f = f, .opt = opt, .fg = &fg, .cells = cells, .thru = thru,
+                     .sfrac = sfrac, .times = times, .out = out};
+    if (gw_parallel_for(opt->threads, out->nzone, well_item, &job, err) != 0)
+        goto done;
     rc = 0;
 done:
     if (rc != 0)
         gw_capture_free(out);
-    workspace_free(&ws);
+    flow_graph_free(&fg);
+    gw_track_cells_free(cells);
+    free(thru);
+    free(sfrac);
     free(times);
     return rc;
 }

@@ -77,6 +77,7 @@ void gw_catchments_free(gw_catchments *c)
     free(c->received);
     free(c->delivered);
     free(c->source);
+    free(c->mixed_area);
     memset(c, 0, sizeof *c);
 }
 
@@ -152,10 +153,11 @@ int gw_catchments_compute(const gw_problem *p, const gw_flowfield *f, gw_catchme
     c->received = calloc((size_t)nf, sizeof *c->received);
     c->delivered = calloc((size_t)nf * (size_t)nf, sizeof *c->delivered);
     c->source = calloc((size_t)nf, sizeof *c->source);
+    c->mixed_area = calloc((size_t)nf, sizeof *c->mixed_area);
     work w;
     int rc = work_init(f, &w);
     if (rc || !c->dominant || !c->dominant_share || !c->discharge || !c->area || !c->recharge ||
-        !c->received || !c->delivered || !c->source) {
+        !c->received || !c->delivered || !c->source || !c->mixed_area) {
         work_free(&w);
         gw_catchments_free(c);
         return gw_fail(err, "out of memory computing catchments");
@@ -181,8 +183,10 @@ int gw_catchments_compute(const gw_problem *p, const gw_flowfield *f, gw_catchme
             continue;
         feature_pass(f, &w, feat);
         const double *fr = w.frac;
-        double a = 0.0, r = 0.0;
+        double a = 0.0, r = 0.0, mixed = 0.0;
         for (size_t k = 0; k < nc; k++) {
+            if (fr[k] > 1e-12 && fr[k] < 1.0 - 1e-12)
+                mixed += area;
             if (!f->active[k] || fr[k] <= 0.0)
                 continue;
             a += area * fr[k];
@@ -195,6 +199,7 @@ int gw_catchments_compute(const gw_problem *p, const gw_flowfield *f, gw_catchme
             }
         }
         c->area[feat] = a;
+        c->mixed_area[feat] = mixed;
         c->recharge[feat] = r;
         double *del = c->delivered;
         del[0 * nf + feat] = r;

@@ -28,6 +28,10 @@ typedef struct {
      * s (0 = recharge) that ends in feature f, L^3/T. */
     double *delivered;
     double *source;            /* per feature: water it puts into the aquifer */
+    /* per feature: area of the cells sending only part of their water to it
+     * (share strictly between 1e-12 and 1 - 1e-12), L^2; 0 where the
+     * feature takes no water. */
+    double *mixed_area;
     long unresolved;           /* active cells left out of the ordering (should be 0) */
 } gw_catchments;
 

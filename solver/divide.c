@@ -405,14 +405,21 @@ int gw_divide_analysis_run(const gw_problem *p, const gw_solution *sol, gw_divid
     gw_flowfield f;
     if (gw_flowfield_compute(p, sol, &f, err))
         return -1;
-    if (gw_catchments_compute(p, &f, &a->catchments, err) ||
-        gw_divides_compute(p, &f, &a->catchments, &a->divides, err) ||
+    int rc = gw_divide_analysis_run_flow(p, sol, &f, a, err);
+    gw_flowfield_free(&f);
+    return rc;
+}
+
+int gw_divide_analysis_run_flow(const gw_problem *p, const gw_solution *sol,
+                                const gw_flowfield *f, gw_divide_analysis *a, gw_error *err)
+{
+    memset(a, 0, sizeof *a);
+    if (gw_catchments_compute(p, f, &a->catchments, err) ||
+        gw_divides_compute(p, f, &a->catchments, &a->divides, err) ||
         gw_no_divide_find(&a->catchments, &a->divides, &a->no_divide, &a->nno_divide, err) ||
-        gw_stagnation_find(p, sol, &f, &a->stagnation, &a->nstagnation, err)) {
-        gw_flowfield_free(&f);
+        gw_stagnation_find(p, sol, f, &a->stagnation, &a->nstagnation, err)) {
         gw_divide_analysis_free(a);
         return -1;
     }
-    gw_flowfield_free(&f);
     return 0;
 }

@@ -67,6 +67,10 @@ typedef struct {
  * a solved problem. */
 int gw_divide_analysis_run(const gw_problem *p, const gw_solution *sol, gw_divide_analysis *a,
                            gw_error *err);
+/* The same from a flow field already computed from sol (read only, so other
+ * threads may use it meanwhile). */
+int gw_divide_analysis_run_flow(const gw_problem *p, const gw_solution *sol,
+                                const gw_flowfield *f, gw_divide_analysis *a, gw_error *err);
 void gw_divide_analysis_free(gw_divide_analysis *a);
 
 #endif

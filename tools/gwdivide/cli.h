@@ -41,10 +41,25 @@ void gw_print_summary(FILE *f, const gw_results *r, const char *out_dir);
 /* Capture and travel-time zones of the pumping wells into r->capture, with
  * their warnings (run_capture.c). */
 int gw_run_capture(gw_results *r, gw_error *err);
+/* Its two halves, so the zones can be computed while the divides are:
+ * the zones into r->capture (touches nothing else in r; flow: the flow
+ * field of r's solution, or NULL to compute it), then their warnings and
+ * caution.  gw_capture_wanted: whether the model asks for zones. */
+int gw_capture_wanted(const gw_results *r);
+int gw_capture_run_zones(gw_results *r, const gw_flowfield *flow, gw_error *err);
+int gw_capture_add_notes(gw_results *r, gw_error *err);
 
 /* Catchments, divides, no-divide pairs and stagnation points into
  * r->divides (run_divides.c). */
 int gw_run_divides(gw_results *r, gw_error *err);
+/* Its two halves: the analysis alone (*out NULL when none is asked for;
+ * only reads r and f -- the flow field of r's solution, or NULL to compute
+ * it -- so it may run on another thread), then storing it in r with its
+ * warning (takes ownership of a, even on failure). */
+int gw_run_divides_wanted(const gw_results *r);
+int gw_run_divides_compute(const gw_results *r, const gw_flowfield *f, gw_divide_analysis **out,
+                           gw_error *err);
+int gw_run_divides_store(gw_results *r, gw_divide_analysis *a, gw_error *err);
 
 /* Transect profiles (run_transects.c): computed after the divides, written
  * as transect_<name>.csv into the staged output folder. */

@@ -1,6 +1,7 @@
 /* `gwdivide run`: read, build, solve, budget, analyse, write.  Every stage
  * returns an error value; this file turns them into one message and an exit
  * status.  Outputs are staged (io/outdir.h) so a failed run writes nothing. */
+#include <pthread.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -14,6 +15,7 @@
 #include "../../io/report_json.h"
 #include "../../io/results.h"
 #include "../../io/results_gpkg.h"
+#include "../../solver/flowfield.h"
 #include "cli.h"
 
 double gw_now(void)
@@ -76,6 +78,67 @@ static int solve_stage(gw_results *r, const gw_run_args *a, gw_error *err)
     if (d) r->solver_method = strdup(d);
     gw_solver_free(s);
     return rc;
+}
+
+/* The divides analysis on its own thread: it only reads the model and the
+ * solution, like the capture zones computed meanwhile on the caller's. */
+typedef struct {
+    const gw_results *r;
+    const gw_flowfield *f;
+    gw_divide_analysis *a;
+    gw_error err;
+    int rc;
+    double seconds;
+} divides_job;
+
+static void *divides_thread(void *arg)
+{
+    divides_job *j = arg;
+    double t = gw_now();
+    j->rc = gw_run_divides_compute(j->r, j->f, &j->a, &j->err);
+    j->seconds = gw_now() - t;
+    return NULL;
+}
+
+/* Divides, transects and capture zones.  The divides and the zones are
+ * independent, so they run at the same time from one flow field; all they
+ * add to r (warnings, cautions) is added afterwards in the order of a
+ * one-thread run, and the first failure in that order is the one reported. */
+static int analyses(gw_results *r, gw_error *err)
+{
+    int want_div = gw_run_divides_wanted(r), want_cap = gw_capture_wanted(r);
+    gw_flowfield ff = {0};
+    double ta = gw_now();
+    if ((want_div || want_cap) && gw_flowfield_compute(r->problem, &r->solution, &ff, err) != 0) {
+        if (want_div) gw_fail_prefix(err, "divides: ");
+        return -1;
+    }
+    double t_flow = gw_now() - ta;
+    divides_job job = {.r = r, .f = &ff};
+    pthread_t th;
+    int threaded = want_div && pthread_create(&th, NULL, divides_thread, &job) == 0;
+    if (!threaded)
+        divides_thread(&job);
+    ta = gw_now();
+    gw_error cerr = {{0}};
+    int crc = gw_capture_run_zones(r, &ff, &cerr);
+    r->timing.tracking = gw_now() - ta;
+    if (threaded)
+        pthread_join(th, NULL);
+    gw_flowfield_free(&ff);
+    job.seconds += t_flow;
+    r->timing.divides = job.seconds;
+    if (job.rc != 0) {
+        *err = job.err;
+        return -1;
+    }
+    if (gw_run_divides_store(r, job.a, err) != 0) return -1;
+    if (gw_run_transects(r, err) != 0) return -1;
+    if (crc != 0) {
+        *err = cerr;
+        return -1;
+    }
+    return gw_capture_add_notes(r, err);
 }
 
 /* Write every output into the staged folder, then move them into place. */
@@ -154,13 +217,7 @@ int gw_cmd_run(const gw_run_args *a)
     if (gw_results_observe(&r, &err) != 0) goto fail;
     /* ---- analyses (divides, catchments, capture zones, ...) go here,
      *      each storing its result in r (see io/results.h) ---- */
-    double ta = gw_now();
-    if (gw_run_divides(&r, &err) != 0) goto fail;
-    r.timing.divides = gw_now() - ta;
-    if (gw_run_transects(&r, &err) != 0) goto fail;
-    ta = gw_now();
-    if (gw_run_capture(&r, &err) != 0) goto fail;
-    r.timing.tracking = gw_now() - ta;
+    if (analyses(&r, &err) != 0) goto fail;
     if (gw_run_section(&r, &err) != 0) goto fail;
     r.timing.analysis = gw_now() - t;
 

@@ -56,19 +56,26 @@ static int capture_threads(int *threads, gw_error *err)
     return 0;
 }
 
-int gw_run_capture(gw_results *r, gw_error *err)
+int gw_capture_wanted(const gw_results *r)
+{
+    const gw_problem *p = r->problem;
+    return r->model->capture && p->type != GW_SECTION && p->nwells > 0 && r->have_solution;
+}
+
+int gw_capture_run_zones(gw_results *r, const gw_flowfield *flow, gw_error *err)
 {
     const gw_model *m = r->model;
     const gw_problem *p = r->problem;
-    if (!m->capture || p->type == GW_SECTION || p->nwells == 0 || !r->have_solution)
+    if (!gw_capture_wanted(r))
         return 0;
     gw_capture_options o;
     gw_capture_options_default(&o);
     if (capture_threads(&o.threads, err) != 0)
         return -1;
-    gw_flowfield ff;
-    if (gw_flowfield_compute(p, &r->solution, &ff, err) != 0)
+    gw_flowfield ff = {0};
+    if (!flow && gw_flowfield_compute(p, &r->solution, &ff, err) != 0)
         return -1;
+    const gw_flowfield *f = flow ? flow : &ff;
     o.times = m->travel_times;
     o.ntimes = m->ntravel_times;
     gw_capture *c = calloc(1, sizeof *c);
@@ -76,13 +83,22 @@ int gw_run_capture(gw_results *r, gw_error *err)
         gw_flowfield_free(&ff);
         return gw_fail(err, "out of memory");
     }
-    int rc = gw_capture_compute(p, &ff, &o, c, err);
+    int rc = gw_capture_compute(p, f, &o, c, err);
     gw_flowfield_free(&ff);
     if (rc != 0) {
         free(c);
         return -1;
     }
     r->capture = c;
+    return 0;
+}
+
+int gw_capture_add_notes(gw_results *r, gw_error *err)
+{
+    const gw_model *m = r->model;
+    const gw_capture *c = r->capture;
+    if (!c)
+        return 0;
     for (int i = 0; i < c->nzone; i++)
         if (warn_zone(r, &c->zone[i], err) != 0)
             return -1;
@@ -98,4 +114,11 @@ int gw_run_capture(gw_results *r, gw_error *err)
                        "travel through the unsaturated zone.", por) != 0)
         return gw_fail(err, "out of memory");
     return 0;
+}
+
+int gw_run_capture(gw_results *r, gw_error *err)
+{
+    if (gw_capture_run_zones(r, NULL, err) != 0)
+        return -1;
+    return gw_capture_add_notes(r, err);
 }
