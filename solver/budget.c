@@ -25,8 +25,7 @@ double gw_link_flux(const gw_link *l, double h)
     return 0.0;
 }
 
-/* Link flux in the state the final solve used (consistent with the matrix). */
-static double link_flux_in_state(const gw_link *l, int on, double h)
+double gw_link_flux_in_state(const gw_link *l, int on, double h)
 {
     if (on)
         return l->cond * (l->ref - h);
@@ -79,7 +78,7 @@ int gw_budget_compute(const gw_problem *p, const gw_solution *sol, gw_budget *b,
             const gw_link *l = &p->links[i];
             if (l->feature != f || !p->active[l->cell])
                 continue;
-            double q = link_flux_in_state(l, sol->link_on[i], h[l->cell]);
+            double q = gw_link_flux_in_state(l, sol->link_on[i], h[l->cell]);
             gw_reach *r = &b->reach[n++];
             r->feature = f;
             r->cell = l->cell;
@@ -107,12 +106,10 @@ int gw_budget_compute(const gw_problem *p, const gw_solution *sol, gw_budget *b,
                 continue;
             int c = (int)(k % (size_t)g->nx);
             double outflow = 0.0;
-            /* A zero conductance (inactive neighbour, whose head is NaN) carries nothing. */
-            if (c + 1 < g->nx && sol->cx[k] != 0.0) outflow += sol->cx[k] * (h[k] - h[k + 1]);
-            if (c > 0 && sol->cx[k - 1] != 0.0) outflow += sol->cx[k - 1] * (h[k] - h[k - 1]);
-            if (k + g->nx < nc && sol->cy[k] != 0.0) outflow += sol->cy[k] * (h[k] - h[k + g->nx]);
-            if (k >= (size_t)g->nx && sol->cy[k - g->nx] != 0.0)
-                outflow += sol->cy[k - g->nx] * (h[k] - h[k - g->nx]);
+            if (c + 1 < g->nx) outflow += gw_flow_east(sol, k);
+            if (c > 0) outflow -= gw_flow_east(sol, k - 1);
+            if (k + g->nx < nc) outflow += gw_flow_south(sol, g->nx, k);
+            if (k >= (size_t)g->nx) outflow -= gw_flow_south(sol, g->nx, k - g->nx);
             double q = outflow - other[k];
             gw_reach *r = &b->reach[n++];
             r->feature = f;

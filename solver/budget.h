@@ -39,4 +39,9 @@ void gw_budget_free(gw_budget *b);
 /* Flux into the aquifer (L^3/T) of link l at head h (the exchange law). */
 double gw_link_flux(const gw_link *l, double h);
 
+/* Flux into the aquifer of link l at head h in a given state (on = head-
+ * dependent), as the final solve used it (gw_solution.link_on), so budgets
+ * and flow fields balance the matrix to round-off. */
+double gw_link_flux_in_state(const gw_link *l, int on, double h);
+
 #endif

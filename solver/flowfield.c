@@ -8,15 +8,6 @@
  * the solver's default floor, so seepage velocities stay finite. */
 #define GW_FF_MIN_THICK 1e-3
 
-/* The exchange law in the state the final solve used (same as the budget),
- * so src/sink balance the face fluxes to round-off. */
-static double link_q(const gw_link *l, int on, double h)
-{
-    if (on)
-        return l->cond * (l->ref - h);
-    return l->kind == GW_LINK_STREAM ? l->cond * (l->ref - l->floor) : 0.0;
-}
-
 void gw_flowfield_free(gw_flowfield *f)
 {
     if (!f)
@@ -77,10 +68,10 @@ int gw_flowfield_compute(const gw_problem *p, const gw_solution *sol, gw_flowfie
         int c = (int)(k % (size_t)nx);
         /* cx/cy are zero at edges and next to inactive cells, where the
          * neighbour head may be NAN: test before multiplying. */
-        if (c + 1 < nx && sol->cx[k] != 0.0)
-            f->qe[k] = sol->cx[k] * (h[k] - h[k + 1]);
-        if (k + nx < nc && sol->cy[k] != 0.0)
-            f->qs[k] = sol->cy[k] * (h[k] - h[k + nx]);
+        if (c + 1 < nx)
+            f->qe[k] = gw_flow_east(sol, k);
+        if (k + nx < nc)
+            f->qs[k] = gw_flow_south(sol, nx, k);
         switch (p->type) {
         case GW_CONFINED: f->sat_thick[k] = p->thick[k]; break;
         case GW_UNCONFINED: {
@@ -109,7 +100,7 @@ int gw_flowfield_compute(const gw_problem *p, const gw_solution *sol, gw_flowfie
         const gw_link *l = &p->links[i];
         if (!p->active[l->cell])
             continue;
-        double q = link_q(l, sol->link_on[i], h[l->cell]);
+        double q = gw_link_flux_in_state(l, sol->link_on[i], h[l->cell]);
         other[l->cell] += q;
         if (push_exch(f, &cap, l->cell, l->feature, q))
             goto oom;

@@ -46,20 +46,6 @@ void gw_section_free(gw_section *s)
 
 /* ---- Streamline tracing (Pollock 1988) --------------------------------- */
 
-/* Flux (L^2/T per unit width) from cell k to its east / south neighbour;
- * zero where the solver dropped the face (edge, inactive, fixed-fixed). */
-static double flux_e(const gw_solution *sol, size_t k)
-{
-    double c = sol->cx[k];
-    return c > 0.0 ? c * (sol->head[k] - sol->head[k + 1]) : 0.0;
-}
-
-static double flux_s(const gw_solution *sol, const gw_grid *g, size_t k)
-{
-    double c = sol->cy[k];
-    return c > 0.0 ? c * (sol->head[k] - sol->head[k + (size_t)g->nx]) : 0.0;
-}
-
 /* Along one axis of a cell of length len, velocity linear from v1 (low
  * face) to v2 (high face), particle at p.  Returns +1 / -1 for the face it
  * leaves through (time in *t), 0 when it cannot leave along this axis. */
@@ -129,9 +115,9 @@ static int trace_from(const gw_problem *p, const gw_solution *sol, double x, dou
         double xi = fmin(fmax(x - (g->x0 + c * g->dx), 0.0), g->dx);
         double eta = fmin(fmax((ytop - r * g->dy) - z, 0.0), g->dy);   /* down from the top face */
         /* dir -1 traces backward, to where the water came from */
-        double qw = c > 0 ? dir * flux_e(sol, (size_t)k - 1) : 0.0, qe = dir * flux_e(sol, (size_t)k);
-        double qn = r > 0 ? dir * flux_s(sol, g, (size_t)k - (size_t)g->nx) : 0.0;
-        double qs = dir * flux_s(sol, g, (size_t)k);
+        double qw = c > 0 ? dir * gw_flow_east(sol, (size_t)k - 1) : 0.0, qe = dir * gw_flow_east(sol, (size_t)k);
+        double qn = r > 0 ? dir * gw_flow_south(sol, g->nx, (size_t)k - (size_t)g->nx) : 0.0;
+        double qs = dir * gw_flow_south(sol, g->nx, (size_t)k);
         double vx1 = qw / (g->dy * n), vx2 = qe / (g->dy * n);
         double vd1 = qn / (g->dx * n), vd2 = qs / (g->dx * n);
         double tx = HUGE_VAL, td = HUGE_VAL;
@@ -270,7 +256,7 @@ static void spread_risers(const gw_problem *p, const gw_solution *sol, const int
                 if (p->fixed_feature[k] != feat || !p->active[m] || p->fixed_feature[m] >= 0)
                     continue;
                 /* flow from fixed cell k into the aquifer through the riser */
-                double q = side > 0 ? flux_e(sol, k) : -flux_e(sol, m);
+                double q = side > 0 ? gw_flow_east(sol, k) : -gw_flow_east(sol, m);
                 int j = nc, n = 0;
                 while (j >= 0 && j < nx && toprow[j] == toprow[nc]) {
                     n++;
@@ -561,13 +547,13 @@ static int collect_faces(ctx *c, gw_error *err)
             double xl = g->x0 + col * g->dx, yt = ytop - r * g->dy;
             /* neighbours: south, north, east, west; flux out of k into them */
             struct { long m; double q, xa, za, xb, zb; } nb[4] = {
-                { k + g->nx < nc ? (long)(k + g->nx) : -1, k + g->nx < nc ? flux_s(c->sol, g, k) : 0,
+                { k + g->nx < nc ? (long)(k + g->nx) : -1, k + g->nx < nc ? gw_flow_south(c->sol, g->nx, k) : 0,
                   xl, yt - g->dy, xl + g->dx, yt - g->dy },
-                { r > 0 ? (long)(k - g->nx) : -1, r > 0 ? -flux_s(c->sol, g, k - g->nx) : 0,
+                { r > 0 ? (long)(k - g->nx) : -1, r > 0 ? -gw_flow_south(c->sol, g->nx, k - g->nx) : 0,
                   xl, yt, xl + g->dx, yt },
-                { col + 1 < g->nx ? (long)k + 1 : -1, col + 1 < g->nx ? flux_e(c->sol, k) : 0,
+                { col + 1 < g->nx ? (long)k + 1 : -1, col + 1 < g->nx ? gw_flow_east(c->sol, k) : 0,
                   xl + g->dx, yt, xl + g->dx, yt - g->dy },
-                { col > 0 ? (long)k - 1 : -1, col > 0 ? -flux_e(c->sol, k - 1) : 0,
+                { col > 0 ? (long)k - 1 : -1, col > 0 ? -gw_flow_east(c->sol, k - 1) : 0,
                   xl, yt, xl, yt - g->dy },
             };
             for (int d = 0; d < 4; d++) {

@@ -80,4 +80,18 @@ int gw_solve(const gw_problem *p, const gw_solve_options *opt, gw_solution *sol,
 
 void gw_solution_free(gw_solution *sol);   /* frees arrays, not the struct */
 
+/* Flow (L^3/T, or L^2/T per unit width in a section) from cell k to its east
+ * (k+1) / south (k+nx) neighbour through the final solve's conductances.  A
+ * face with no conductance (grid edge, inactive neighbour, fixed-fixed)
+ * carries nothing, and the neighbour's head (maybe NAN) is not read. */
+static inline double gw_flow_east(const gw_solution *s, size_t k)
+{
+    return s->cx[k] != 0.0 ? s->cx[k] * (s->head[k] - s->head[k + 1]) : 0.0;
+}
+
+static inline double gw_flow_south(const gw_solution *s, int nx, size_t k)
+{
+    return s->cy[k] != 0.0 ? s->cy[k] * (s->head[k] - s->head[k + (size_t)nx]) : 0.0;
+}
+
 #endif

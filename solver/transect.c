@@ -13,20 +13,14 @@ static double flux_east(const gw_problem *p, const gw_solution *sol, int col, in
 {
     const gw_grid *g = &p->grid;
     if (col < 0 || col >= g->nx - 1) return 0.0;
-    size_t k = (size_t)row * g->nx + col;
-    double c = sol->cx[k];
-    if (c == 0.0) return 0.0;
-    return c * (sol->head[k] - sol->head[k + 1]);
+    return gw_flow_east(sol, (size_t)row * g->nx + col);
 }
 
 static double flux_south(const gw_problem *p, const gw_solution *sol, int col, int row)
 {
     const gw_grid *g = &p->grid;
     if (row < 0 || row >= g->ny - 1) return 0.0;
-    size_t k = (size_t)row * g->nx + col;
-    double c = sol->cy[k];
-    if (c == 0.0) return 0.0;
-    return c * (sol->head[k] - sol->head[k + g->nx]);
+    return gw_flow_south(sol, g->nx, (size_t)row * g->nx + col);
 }
 
 int gw_flux_at(const gw_problem *p, const gw_solution *sol, double x, double y, double *qx,
