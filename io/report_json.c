@@ -364,6 +364,7 @@ static void write_capture_zones(gw_json *j, const gw_results *r)
         gw_json_kv_double(j, "weak_sink_path_fraction", z->weak_pass_share);
         gw_json_kv_int(j, "paths", z->seeds);
         gw_json_kv_int(j, "points_decided", z->classified);   /* lattice points needing no path */
+        gw_json_kv_int(j, "paths_stopped_between_known_paths", z->known_stops);
         gw_json_key(j, "path_ends");
         gw_json_object_begin(j);
         for (int e = GW_END_SINK; e <= GW_END_MAX_STEPS; e++)

@@ -1,7 +1,9 @@
 #include "capture.h"
 
 #include "parallel.h"
+#include "path_fate.h"
 
+#include <limits.h>
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
@@ -15,6 +17,7 @@ void gw_capture_options_default(gw_capture_options *o)
     o->weak = GW_WEAK_THRESHOLD;
     o->weak_threshold = 0.5;
     o->threads = 0;
+    o->track_all = 0;
 }
 
 /* ---- Flux-weighted partition ------------------------------------------ */
@@ -291,6 +294,15 @@ typedef struct {
     gw_track_options topt, ttopt;
     int refine;
     int threads;          /* for gw_parallel_for */
+    /* Capture-zone edges: downstream rank of each cell (flow_graph order)
+     * and the closeness, along x and y faces, at which known paths decide
+     * a new one (see "Known paths"). */
+    const long *rank;
+    double tol_x, tol_y;
+    gw_fate_map *known;   /* time-unlimited paths tracked so far */
+    int track_all;        /* do not use them (gw_capture_options.track_all) */
+    struct known_slot *slot;   /* KNOWN_BATCH, one per batch item */
+    long known_stops;     /* paths stopped between known paths */
     /* Lattice: NX x NY nodes, x east (I), y north (J); the outermost ring
      * of nodes lies on the box edge and counts as outside. */
     int NX, NY;
@@ -375,6 +387,194 @@ static int bisect_point(void *ctx, long i, gw_error *err)
     return 0;
 }
 
+/* ---- Known paths ---------------------------------------------------------
+ *
+ * A path near a capture-zone edge hugs the edge, and the edge is a path
+ * line: followed alone, such a path runs all the way down to the
+ * stagnation point before it turns in or out, and so does every seed in
+ * the undecided band.  Path lines do not cross, so every face crossing of
+ * every tracked path is kept with its fate (solver/path_fate.h), and a
+ * later path stops at the first face where it passes between two known
+ * paths of the same fate, each within a quarter of the seed spacing.  Only
+ * a zone or hole narrower than that could hide between them, far below
+ * what the lattice resolves (zones are drawn from seeds a spacing apart);
+ * a path that passes between paths of different fates -- right on an
+ * edge -- is tracked on.  Paths are tracked downstream first, in batches
+ * of fixed size, so results do not depend on the thread count.  Only
+ * time-unlimited zones use this: travel-time zone edges are not path
+ * lines. */
+
+/* Crossings per batch, and the closeness at which known paths decide, as
+ * a share of the seed spacing. */
+#define KNOWN_BATCH 16
+#define KNOWN_TOL 0.25
+
+/* What one batch item's paths crossed, and how many known paths stopped. */
+struct known_slot {
+    gw_crossing_log log;
+    long stops;
+};
+
+typedef struct {
+    const lattice *L;
+    gw_crossing_log *log;   /* this path's crossings are appended */
+    int oom, stopped;
+} path_watch;
+
+/* face_hook: stop where known paths decide, else log the crossing. */
+static int watch_face(void *ctx, int k, int nk, double along)
+{
+    path_watch *w = ctx;
+    size_t face = gw_face_id(k, nk);
+    int fate = gw_fate_map_lookup(w->L->known, face, along,
+                                  gw_face_is_ew(face) ? w->L->tol_y : w->L->tol_x);
+    if (fate >= 0) {
+        w->stopped = 1;
+        return fate ? CL_IN : CL_OUT;
+    }
+    if (gw_crossing_log_add(w->log, face, along) != 0)
+        w->oom = 1;
+    return 0;
+}
+
+/* Track a time-unlimited path from (x, y) with the known paths' help; its
+ * crossings are logged with its fate.  1 captured, 0 not, -1 on error. */
+static int known_track(const lattice *L, double x, double y, struct known_slot *slot,
+                       gw_track_result *r, gw_error *err)
+{
+    gw_crossing_log *log = &slot->log;
+    path_watch w = {.L = L, .log = log};
+    gw_track_options o = L->topt;
+    if (!L->track_all) {
+        o.face_hook = watch_face;
+        o.face_ctx = &w;
+    }
+    long from = log->n;
+    *r = (gw_track_result){0};
+    if (gw_track(L->f, x, y, &o, r, err) != 0)
+        return -1;
+    if (w.oom)
+        return gw_fail(err, "out of memory tracing a capture zone");
+    int in = r->end == GW_END_STOP_CELL && r->stop_value != CL_OUT;
+    gw_crossing_log_set_fate(log, from, (unsigned char)in);
+    slot->stops += w.stopped;
+    return in;
+}
+
+/* Downstream rank of the cell holding map point (x, y). */
+static long rank_at(const lattice *L, double x, double y)
+{
+    int col, row;
+    if (gw_grid_locate(&L->f->grid, x, y, &col, &row) != 0)
+        return LONG_MAX;
+    return L->rank[(size_t)row * L->f->grid.nx + col];
+}
+
+/* Sort item[0..n) by key[item], downstream first; ties keep their order
+ * (merge sort, so no shared state). */
+static int sort_downstream(long *item, const long *key, long n)
+{
+    long *tmp = malloc((size_t)(n ? n : 1) * sizeof *tmp);
+    if (!tmp)
+        return -1;
+    for (long width = 1; width < n; width *= 2) {
+        for (long lo = 0; lo < n; lo += 2 * width) {
+            long mid = lo + width < n ? lo + width : n;
+            long hi = lo + 2 * width < n ? lo + 2 * width : n;
+            long i = lo, j = mid, t = lo;
+            while (i < mid && j < hi)
+                tmp[t++] = key[item[j]] < key[item[i]] ? item[j++] : item[i++];
+            while (i < mid) tmp[t++] = item[i++];
+            while (j < hi) tmp[t++] = item[j++];
+        }
+        memcpy(item, tmp, (size_t)n * sizeof *item);
+    }
+    free(tmp);
+    return 0;
+}
+
+typedef int (*known_item_fn)(void *ctx, long item, struct known_slot *slot, gw_error *err);
+
+typedef struct {
+    lattice *L;
+    const long *item;
+    known_item_fn fn;
+    void *ctx;
+} known_batch;
+
+static int known_batch_item(void *ctx, long i, gw_error *err)
+{
+    const known_batch *b = ctx;
+    struct known_slot *slot = &b->L->slot[i];
+    slot->log.n = 0;
+    slot->stops = 0;
+    return b->fn(b->ctx, b->item[i], slot, err);
+}
+
+/* Run fn on every item, downstream first by key, a batch at a time; what
+ * each batch's paths crossed is learned before the next batch starts. */
+static int known_run(lattice *L, long *item, const long *key, long n, known_item_fn fn,
+                     void *ctx, gw_error *err)
+{
+    if (sort_downstream(item, key, n) != 0)
+        return gw_fail(err, "out of memory tracing a capture zone");
+    for (long b0 = 0; b0 < n; b0 += KNOWN_BATCH) {
+        long nb = n - b0 < KNOWN_BATCH ? n - b0 : KNOWN_BATCH;
+        known_batch job = {.L = L, .item = item + b0, .fn = fn, .ctx = ctx};
+        if (gw_parallel_for(L->threads, nb, known_batch_item, &job, err) != 0)
+            return -1;
+        for (long i = 0; i < nb; i++) {
+            if (gw_fate_map_learn(L->known, &L->slot[i].log) != 0)
+                return gw_fail(err, "out of memory tracing a capture zone");
+            L->known_stops += L->slot[i].stops;
+        }
+    }
+    return 0;
+}
+
+/* Bisect crossing pt of a time-unlimited zone edge (writes px, py). */
+static int bisect_edge(void *ctx, long pt, struct known_slot *slot, gw_error *err)
+{
+    lattice *L = ctx;
+    int a = L->pa[pt], b = L->pb[pt];
+    double ax = L->xs[a % L->NX], ay = L->ys[a / L->NX];
+    double bx = L->xs[b % L->NX], by = L->ys[b / L->NX];
+    for (int k = 0; k < L->refine; k++) {
+        double mx = 0.5 * (ax + bx), my = 0.5 * (ay + by);
+        gw_track_result r;
+        int in = known_track(L, mx, my, slot, &r, err);
+        if (in < 0)
+            return -1;
+        if (in) { ax = mx; ay = my; } else { bx = mx; by = my; }
+    }
+    L->px[pt] = 0.5 * (ax + bx);
+    L->py[pt] = 0.5 * (ay + by);
+    return 0;
+}
+
+static int bisect_edges(lattice *L, gw_error *err)
+{
+    long np = L->np;
+    long *pts = malloc((size_t)(np ? np : 1) * sizeof *pts);
+    long *key = malloc((size_t)(np ? np : 1) * sizeof *key);
+    int rc = -1;
+    if (!pts || !key) {
+        gw_fail(err, "out of memory tracing a capture zone");
+        goto done;
+    }
+    for (long i = 0; i < np; i++) {
+        int a = L->pa[i], b = L->pb[i];
+        pts[i] = i;
+        key[i] = rank_at(L, 0.5 * (L->xs[a % L->NX] + L->xs[b % L->NX]),
+                         0.5 * (L->ys[a / L->NX] + L->ys[b / L->NX]));
+    }
+    rc = known_run(L, pts, key, np, bisect_edge, L, err);
+done:
+    free(pts);
+    free(key);
+    return rc;
+}
+
 static void zone_free(gw_capzone *z)
 {
     for (int i = 0; i < z->nring; i++) {
@@ -402,9 +602,14 @@ static int trace_zone(lattice *L, double tlim, gw_capzone *z, gw_error *err)
      * numbers and positions do not depend on the thread count. */
     for (int pass = 0; pass < 2; pass++) {
         if (pass == 1) {
-            bisect_job job = {.L = L, .tlim = tlim};
-            if (gw_parallel_for(L->threads, L->np, bisect_point, &job, err) != 0)
-                return -1;
+            if (tlim == HUGE_VAL) {
+                if (bisect_edges(L, err) != 0)
+                    return -1;
+            } else {
+                bisect_job job = {.L = L, .tlim = tlim};
+                if (gw_parallel_for(L->threads, L->np, bisect_point, &job, err) != 0)
+                    return -1;
+            }
         }
         for (int J = 0; J + 1 < NY; J++)
             for (int I = 0; I + 1 < NX; I++) {
@@ -563,6 +768,7 @@ typedef struct {
     double *fout, *w, *reach, *pw, *wr;
     unsigned char *cls, *cmask, *tmask;
     const gw_track_cells *cells;   /* compact per-cell tracking data */
+    const long *rank;              /* cell -> position in fg->order */
 } workspace;
 
 static void workspace_free(workspace *ws)
@@ -687,24 +893,42 @@ static int want_node(seeding *sd, size_t n, gw_error *err)
     return 0;
 }
 
-/* Track queued node i (parallel item; writes only path[i]). */
-static int track_node(void *ctx, long i, gw_error *err)
+/* Track queued node i with the known paths' help (batch item; writes
+ * only path[i] and its log). */
+static int track_node(void *ctx, long i, struct known_slot *slot, gw_error *err)
 {
     seeding *sd = ctx;
     const lattice *L = sd->L;
     size_t n = sd->todo[i];
-    gw_track_result r = {0};
-    if (gw_track(L->f, L->xs[n % (size_t)L->NX], L->ys[n / (size_t)L->NX], &L->topt, &r, err) != 0)
+    gw_track_result r;
+    if (known_track(L, L->xs[n % (size_t)L->NX], L->ys[n / (size_t)L->NX], slot, &r, err) < 0)
         return -1;
     sd->path[i] = (struct node_path){.end = r.end, .stop_value = r.stop_value, .cell = r.cell,
                                      .weak_passed = r.weak_passed, .retained = r.retained};
     return 0;
 }
 
-/* Track every queued node; the queue is then emptied by apply_node. */
+/* Track every queued node, downstream first; the queue is then emptied
+ * by apply_node. */
 static int track_queued(seeding *sd, gw_error *err)
 {
-    return gw_parallel_for(sd->L->threads, sd->ntodo, track_node, sd, err);
+    long n = sd->ntodo;
+    long *item = malloc((size_t)(n ? n : 1) * sizeof *item);
+    long *key = malloc((size_t)(n ? n : 1) * sizeof *key);
+    int rc = -1;
+    if (!item || !key) {
+        gw_fail(err, "out of memory for the capture-zone lattice");
+        goto done;
+    }
+    for (long i = 0; i < n; i++) {
+        item[i] = i;
+        key[i] = sd->ws->rank[node_cell(sd, sd->todo[i])];
+    }
+    rc = known_run(sd->L, item, key, n, track_node, sd, err);
+done:
+    free(item);
+    free(key);
+    return rc;
 }
 
 /* State of node n from its tracked path (if still unknown); called in a
@@ -970,7 +1194,8 @@ done:
 /* One well feature: zones by tracking, in the cells the reach share leaves
  * undecided. */
 static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture_options *o,
-                    workspace *ws, const double *times, gw_capture_zone *cz, gw_error *err)
+                    int inner_threads, workspace *ws, const double *times, gw_capture_zone *cz,
+                    gw_error *err)
 {
     const gw_grid *g = &p->grid;
     size_t nc = gw_grid_ncells(g);
@@ -1017,7 +1242,11 @@ static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture
     L.ttopt = L.topt;
     L.ttopt.stop_mask = ws->tmask;
     L.refine = o->refine > 0 ? o->refine : 10;
-    L.threads = o->threads > 0 ? o->threads : gw_default_threads();
+    L.rank = ws->rank;
+    L.track_all = o->track_all;
+    L.tol_x = KNOWN_TOL * g->dx / s;
+    L.tol_y = KNOWN_TOL * g->dy / s;
+    L.threads = inner_threads;
     L.NX = (c1 - c0 + 1) * s + 2;
     L.NY = (r1 - r0 + 1) * s + 2;
     size_t nn = (size_t)L.NX * L.NY;
@@ -1026,7 +1255,9 @@ static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture
     L.cap = calloc(nn, 1);
     L.time = malloc(nn * sizeof *L.time);
     L.emap = malloc(2 * nn * sizeof *L.emap);
-    if (!L.xs || !L.ys || !L.cap || !L.time || !L.emap) {
+    L.known = gw_fate_map_new();
+    L.slot = calloc(KNOWN_BATCH, sizeof *L.slot);
+    if (!L.xs || !L.ys || !L.cap || !L.time || !L.emap || !L.known || !L.slot) {
         gw_fail(err, "out of memory for the capture-zone lattice");
         goto done;
     }
@@ -1045,6 +1276,7 @@ static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture
     cz->weak_pass_share = ncap ? npass / (double)ncap : 0.0;
     if (trace_zone(&L, HUGE_VAL, &cz->capture, err) != 0)
         goto done;
+    cz->known_stops = L.known_stops;
     cz->ttz = calloc((size_t)(o->ntimes > 0 ? o->ntimes : 1), sizeof *cz->ttz);
     if (!cz->ttz) {
         gw_fail(err, "out of memory for travel-time zones");
@@ -1065,6 +1297,11 @@ done:
     free(L.cap);
     free(L.time);
     free(L.emap);
+    gw_fate_map_free(L.known);
+    if (L.slot)
+        for (int i = 0; i < KNOWN_BATCH; i++)
+            gw_crossing_log_free(&L.slot[i].log);
+    free(L.slot);
     free(L.px);
     free(L.py);
     free(L.next);
@@ -1082,9 +1319,11 @@ typedef struct {
     const gw_capture_options *opt;
     const flow_graph *fg;
     const gw_track_cells *cells;
+    const long *rank;
     const unsigned char *thru;
     const double *sfrac;
     const double *times;
+    int inner_threads;    /* threads within one well's zone */
     gw_capture *out;
 } wells_job;
 
@@ -1104,6 +1343,7 @@ static int well_item(void *ctx, long i, gw_error *err)
     }
     ws.fg = j->fg;
     ws.cells = j->cells;
+    ws.rank = j->rank;
     ws.thru = j->thru;
     ws.sfrac = j->sfrac;
     double *fout = ws.fout, *w = ws.w;
@@ -1133,7 +1373,7 @@ static int well_item(void *ctx, long i, gw_error *err)
         }
     }
     cz->well_cell_share = thru > 0.0 ? (take < thru ? take / thru : 1.0) : 1.0;
-    int rc = one_well(p, f, j->opt, &ws, j->times, cz, err);
+    int rc = one_well(p, f, j->opt, j->inner_threads, &ws, j->times, cz, err);
     if (rc != 0)
         gw_fail_prefix(err, "capture zone of well '%s': ", p->features[cz->feature].name);
     workspace_free(&ws);
@@ -1159,6 +1399,7 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
     gw_track_cells *cells = NULL;
     unsigned char *thru = NULL;
     double *sfrac = NULL;
+    long *rank = NULL;
     int rc = -1;
     if (!times) {
         gw_fail(err, "out of memory for capture zones");
@@ -1208,17 +1449,27 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
     size_t nc = gw_grid_ncells(&p->grid);
     thru = malloc(nc ? nc : 1);
     sfrac = malloc((nc ? nc : 1) * sizeof *sfrac);
-    if (!thru || !sfrac) {
+    rank = malloc((nc ? nc : 1) * sizeof *rank);
+    if (!thru || !sfrac || !rank) {
         gw_fail(err, "out of memory for capture zones");
         goto done;
     }
+    for (size_t k = 0; k < nc; k++)
+        rank[k] = LONG_MAX;
+    for (long i = 0; i < fg.norder; i++)
+        rank[fg.order[i]] = i;
     for (size_t k = 0; k < nc; k++) {
         sfrac[k] = 0.0;
         thru[k] = usable_cell(f, k) && !gw_track_sink_stops(f, (int)k, &to, &sfrac[k]);
     }
-    wells_job job = {.p = p, .f = f, .opt = opt, .fg = &fg, .cells = cells, .thru = thru,
+    wells_job job = {.p = p, .f = f, .opt = opt, .fg = &fg, .cells = cells, .rank = rank, .thru = thru,
                      .sfrac = sfrac, .times = times, .out = out};
-    if (gw_parallel_for(opt->threads, out->nzone, well_item, &job, err) != 0)
+    /* Wells side by side first: threads within a well only where there are
+     * fewer wells than threads (each zone's batches are small, and nested
+     * threads would only contend). */
+    int threads = opt->threads > 0 ? opt->threads : gw_default_threads();
+    job.inner_threads = threads / out->nzone > 1 ? threads / out->nzone : 1;
+    if (gw_parallel_for(threads, out->nzone, well_item, &job, err) != 0)
         goto done;
     rc = 0;
 done:
@@ -1228,6 +1479,7 @@ done:
     gw_track_cells_free(cells);
     free(thru);
     free(sfrac);
+    free(rank);
     free(times);
     return rc;
 }

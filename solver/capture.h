@@ -71,6 +71,9 @@ typedef struct {
      * entering a cell decided by the reach share. */
     long ends[GW_END_MAX_STEPS + 1];
     long classified;                /* seeds decided by the reach share alone */
+    /* Paths (seeds and edge bisections) stopped between known paths of
+     * the same fate instead of followed to their end (path_fate.h). */
+    long known_stops;
 } gw_capture_zone;
 
 typedef struct {
@@ -89,6 +92,10 @@ typedef struct {
     /* Threads tracking paths (<= 0: the online CPUs, at most 8).  The
      * zones are the same, bit for bit, whatever the number. */
     int threads;
+    /* 1: follow every path to its end instead of stopping it between
+     * known paths of the same fate (see solver/path_fate.h); slower, the
+     * same zones -- kept for checks. */
+    int track_all;
 } gw_capture_options;
 
 void gw_capture_options_default(gw_capture_options *o);

@@ -30,6 +30,8 @@ void gw_track_options_default(gw_track_options *o)
     o->record_path = 0;
     o->no_length = 0;
     o->cells = NULL;
+    o->face_hook = NULL;
+    o->face_ctx = NULL;
 }
 
 void gw_track_result_free(gw_track_result *r)
@@ -427,6 +429,17 @@ int gw_track(const gw_flowfield *f, double x, double y, const gw_track_options *
             break;
         }
         int nk = nrow * g->nx + ncol;
+        if (o->face_hook && exit_x != exit_y) {
+            int v = o->face_hook(o->face_ctx, k, nk, exit_x ? ny : nx);
+            if (v) {
+                px = nx;
+                py = ny;
+                r->end_fraction = 1.0;
+                r->stop_value = v;
+                e = GW_END_STOP_CELL;
+                break;
+            }
+        }
         c = get_rec(f, nk, ncol, nrow, o, use_table, &tmp);
         if (!c->usable) {
             px = nx;

@@ -58,6 +58,15 @@ typedef struct {
      * same flow field; used when its direction and weak-sink rule match
      * these options.  Same paths, faster when many are tracked. */
     const struct gw_track_cells *cells;
+    /* Optional: called each time the path crosses a face from cell k into
+     * neighbour nk (not at a corner), with the crossing's position along
+     * the face (metres from its west end for a north/south face, from its
+     * south end for an east/west face).  A nonzero return stops the path
+     * there as a stop-mask cell would (GW_END_STOP_CELL, stop_value = the
+     * return), so callers that already know a nearby path's fate can end
+     * this one early. */
+    int (*face_hook)(void *ctx, int k, int nk, double along);
+    void *face_ctx;
 } gw_track_options;
 
 void gw_track_options_default(gw_track_options *o);

@@ -17,7 +17,8 @@
  *    same result as Wilson 1993, from memory).
  *
  *  - Tracking runs on several threads; the zones must be the same, bit
- *    for bit, for 1, 2 and 3 threads.
+ *    for bit, for 1, 2 and 3 threads, and the same whether or not paths
+ *    stop between known paths of the same fate.
  *
  * The heads on a ring of fixed-head cells around each grid are the
  * analytic ones, so the boundary is exact and the tests measure the
@@ -445,6 +446,68 @@ static void test_threads_same_zones(void **state)
 
 /* Ring structure: holes belong to the smallest outer ring around them
  * (plane geometry; the rings below are squares with known areas). */
+/* Largest distance between corresponding ring vertices of two zones; -1
+ * when their rings differ in number or size. */
+static double max_shift(const gw_capzone *a, const gw_capzone *b)
+{
+    if (a->nring != b->nring)
+        return -1.0;
+    double d = 0.0;
+    for (int i = 0; i < a->nring; i++) {
+        if (a->ring[i].n != b->ring[i].n)
+            return -1.0;
+        for (int k = 0; k < a->ring[i].n; k++)
+            d = fmax(d, hypot(a->ring[i].x[k] - b->ring[i].x[k], a->ring[i].y[k] - b->ring[i].y[k]));
+    }
+    return d;
+}
+
+/* Stopping a path between known paths of the same fate (path_fate.h) must
+ * not move the zones: the same fields with every path followed to its end
+ * give the same rings.  A different decision anywhere would move a vertex
+ * by at least a bisection step (5 m / 2^10 here). */
+static void test_known_paths_same_zones(void **state)
+{
+    (void)state;
+    const double q = 0.01;
+    const field fields[3] = {
+        {.qreg = q, .qw = 50.0, .nw = 1},
+        {.qreg = q, .qw = 30.0, .nw = 2, .wx = {0.0, 0.0}, .wy = {-100.0, 100.0}},
+        {.qreg = -q, .qw = 2.0 * PI * q * B * 200.0, .nw = 1, .wx = {200.0}, .stream_d = 200.0},
+    };
+    const int box[3][4] = {{260, 60, 70, 70}, {160, 60, 60, 60}, {0, 100, 80, 80}};
+    for (int i = 0; i < 3; i++) {
+        model m;
+        build(&m, &fields[i], box[i][0], box[i][1], box[i][2], box[i][3]);
+        gw_capture c[2];
+        gw_error err = {{0}};
+        for (int t = 0; t < 2; t++) {
+            gw_capture_options o;
+            gw_capture_options_default(&o);
+            o.track_all = t;
+            if (gw_capture_compute(m.p, &m.ff, &o, &c[t], &err) != 0) fail_msg("capture: %s", err.msg);
+        }
+        assert_int_equal(c[0].nzone, c[1].nzone);
+        for (int w = 0; w < c[0].nzone; w++) {
+            double d = max_shift(&c[0].zone[w].capture, &c[1].zone[w].capture);
+            print_message("    field %d well %d: %d rings, %d vertices, %ld paths stopped between "
+                          "known paths; largest shift with every path followed %.3g m\n", i + 1,
+                          w + 1, c[0].zone[w].capture.nring,
+                          c[0].zone[w].capture.ring[c[0].zone[w].capture.outer].n,
+                          c[0].zone[w].known_stops, d);
+            /* Not vacuous: the shortcut was taken, and only when asked. */
+            assert_true(c[0].zone[w].known_stops > 0);
+            assert_int_equal(c[1].zone[w].known_stops, 0);
+            assert_true(d >= 0.0 && d < 1e-9);
+            assert_true(c[0].zone[w].capture.area == c[1].zone[w].capture.area);
+            assert_int_equal(c[0].zone[w].seeds, c[1].zone[w].seeds);
+        }
+        for (int t = 0; t < 2; t++)
+            gw_capture_free(&c[t]);
+        drop(&m);
+    }
+}
+
 static void test_ring_parents(void **state)
 {
     (void)state;
@@ -472,6 +535,7 @@ int main(void)
         cmocka_unit_test(test_two_wells),
         cmocka_unit_test(test_ring_parents),
         cmocka_unit_test(test_threads_same_zones),
+        cmocka_unit_test(test_known_paths_same_zones),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
