@@ -2,6 +2,7 @@
 
 #include "parallel.h"
 #include "path_fate.h"
+#include "upstream.h"
 
 #include <limits.h>
 #include <math.h>
@@ -149,7 +150,8 @@ static int flow_graph_build(const gw_flowfield *f, flow_graph *fg, gw_error *err
 }
 
 static void share_from_order(const gw_flowfield *f, const flow_graph *fg,
-                             const double *gout, const double *fout, double *w)
+                             const double *gout, const double *fout,
+                             const unsigned char *mark, double *w)
 {
     size_t nc = gw_grid_ncells(&f->grid);
     const long norder = fg->norder, ncycle = fg->ncycle;
@@ -160,6 +162,8 @@ static void share_from_order(const gw_flowfield *f, const flow_graph *fg,
         long from = s == 0 ? 0 : norder - ncycle;
         for (long i = from; i < norder; i++) {
             size_t k = (size_t)fg->order[i];
+            if (mark && !mark[k])
+                continue;   /* not upstream of the feature: share 0 */
             double out = gout[k], num = fout[k];
             for (long e = fg->ptr[i]; e < fg->ptr[i + 1]; e++) {
                 long j = fg->to[e];
@@ -199,7 +203,7 @@ int gw_capture_share(const gw_flowfield *f, int feature, double *w, gw_error *er
     feature_out(f, feature, fout, nc);
     if (flow_graph_build(f, &fg, err) != 0)
         goto done;
-    share_from_order(f, &fg, f->sink, fout, w);
+    share_from_order(f, &fg, f->sink, fout, NULL, w);
     rc = 0;
 done:
     free(fout);
@@ -237,8 +241,8 @@ static int usable_cell(const gw_flowfield *f, size_t k)
  * of it such sinks leave (both flux-weighted: an estimate for the seeds
  * that are not tracked all the way). */
 static void reach_pass(const gw_flowfield *f, const flow_graph *fg, const unsigned char *cls,
-                       const unsigned char *thru, const double *sfrac, double *r, double *pw,
-                       double *wr)
+                       const unsigned char *thru, const double *sfrac,
+                       const unsigned char *mark, double *r, double *pw, double *wr)
 {
     size_t nc = gw_grid_ncells(&f->grid);
     for (size_t k = 0; k < nc; k++) {
@@ -251,6 +255,8 @@ static void reach_pass(const gw_flowfield *f, const flow_graph *fg, const unsign
         long from = s == 0 ? 0 : norder - ncycle;
         for (long i = from; i < norder; i++) {
             size_t k = (size_t)fg->order[i];
+            if (!mark[k])
+                continue;   /* no path from here reaches the well */
             double rk = 0.0, pk = 0.0, wk = 1.0, frac;
             if (cls[k] == CL_WELL) {
                 rk = 1.0;
@@ -769,6 +775,7 @@ typedef struct {
     unsigned char *cls, *cmask, *tmask;
     const gw_track_cells *cells;   /* compact per-cell tracking data */
     const long *rank;              /* cell -> position in fg->order */
+    gw_upstream up;                /* cells upstream of the well */
 } workspace;
 
 static void workspace_free(workspace *ws)
@@ -781,6 +788,7 @@ static void workspace_free(workspace *ws)
     free(ws->cls);
     free(ws->cmask);
     free(ws->tmask);
+    gw_upstream_free(&ws->up);
 }
 
 static int workspace_init(workspace *ws, size_t nc)
@@ -1210,7 +1218,7 @@ static int one_well(const gw_problem *p, const gw_flowfield *f, const gw_capture
     /* Cells the well takes water from stop every path. */
     for (size_t k = 0; k < nc; k++)
         ws->cls[k] = ws->fout[k] > 0.0 ? CL_WELL : CL_BAND;
-    reach_pass(f, ws->fg, ws->cls, ws->thru, ws->sfrac, ws->reach, ws->pw, ws->wr);
+    reach_pass(f, ws->fg, ws->cls, ws->thru, ws->sfrac, ws->up.mark, ws->reach, ws->pw, ws->wr);
     int c0 = g->nx, c1 = -1, r0 = g->ny, r1 = -1;
     for (size_t k = 0; k < nc; k++) {
         double r = ws->reach[k];
@@ -1324,6 +1332,7 @@ typedef struct {
     const double *sfrac;
     const double *times;
     int inner_threads;    /* threads within one well's zone */
+    const int *order;     /* zones, largest pumping first */
     gw_capture *out;
 } wells_job;
 
@@ -1335,7 +1344,7 @@ static int well_item(void *ctx, long i, gw_error *err)
     const gw_grid *g = &p->grid;
     size_t nc = gw_grid_ncells(g);
     const double *gin = f->src, *gout = f->sink;
-    gw_capture_zone *cz = &j->out->zone[i];
+    gw_capture_zone *cz = &j->out->zone[j->order[i]];
     workspace ws;
     if (workspace_init(&ws, nc) != 0) {
         workspace_free(&ws);
@@ -1348,12 +1357,19 @@ static int well_item(void *ctx, long i, gw_error *err)
     ws.sfrac = j->sfrac;
     double *fout = ws.fout, *w = ws.w;
     feature_out(f, cz->feature, fout, nc);
-    share_from_order(f, ws.fg, gout, fout, w);
+    /* Only the cells upstream of the well can send it water. */
+    if (gw_upstream_of_feature(f, cz->feature, &ws.up, err) != 0) {
+        workspace_free(&ws);
+        return -1;
+    }
+    share_from_order(f, ws.fg, gout, fout, ws.up.mark, w);
     /* Source split: each feature's inflow times the share reaching the well. */
     double area = g->dx * g->dy;
-    for (size_t k = 0; k < nc; k++)
+    for (long u = 0; u < ws.up.n; u++) {
+        size_t k = (size_t)ws.up.cell[u];
         if (p->active[k] && p->recharge[k] > 0.0)
             cz->source[0] += p->recharge[k] * area * w[k];
+    }
     for (int e = 0; e < f->nexch; e++) {
         const gw_exchange *x = &f->exch[e];
         if (x->q > 0.0 && x->feature >= 0 && x->feature < p->nfeatures)
@@ -1361,7 +1377,8 @@ static int well_item(void *ctx, long i, gw_error *err)
     }
     /* How strong a sink the well's cells are. */
     double take = 0.0, thru = 0.0;
-    for (size_t k = 0; k < nc; k++) {
+    for (long u = 0; u < ws.up.n; u++) {
+        size_t k = (size_t)ws.up.cell[u];
         if (!(fout[k] > 0.0))
             continue;
         take += fout[k];
@@ -1400,6 +1417,7 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
     unsigned char *thru = NULL;
     double *sfrac = NULL;
     long *rank = NULL;
+    int *order = NULL;
     int rc = -1;
     if (!times) {
         gw_fail(err, "out of memory for capture zones");
@@ -1469,6 +1487,22 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
      * threads would only contend). */
     int threads = opt->threads > 0 ? opt->threads : gw_default_threads();
     job.inner_threads = threads / out->nzone > 1 ? threads / out->nzone : 1;
+    /* Largest pumping (roughly the largest zone) first, so the last zone
+     * to start is a small one and the threads finish together. */
+    order = malloc((size_t)out->nzone * sizeof *order);
+    if (!order) {
+        gw_fail(err, "out of memory for capture zones");
+        goto done;
+    }
+    for (int i = 0; i < out->nzone; i++) {
+        int z = i;
+        while (z > 0 && out->zone[order[z - 1]].rate < out->zone[i].rate) {
+            order[z] = order[z - 1];
+            z--;
+        }
+        order[z] = i;
+    }
+    job.order = order;
     if (gw_parallel_for(threads, out->nzone, well_item, &job, err) != 0)
         goto done;
     rc = 0;
@@ -1480,6 +1514,7 @@ done:
     free(thru);
     free(sfrac);
     free(rank);
+    free(order);
     free(times);
     return rc;
 }

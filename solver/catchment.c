@@ -1,5 +1,7 @@
 #include "catchment.h"
 
+#include "upstream.h"
+
 #include <stdlib.h>
 #include <string.h>
 
@@ -48,13 +50,16 @@ static long downstream_order(const gw_flowfield *f, int *order, long *nplaced)
     return nactive - tail;
 }
 
-/* One partition pass for feature `feat`, whose per-cell sink is in sf. */
+/* One partition pass for a feature whose per-cell sink is in sf, over the
+ * cells upstream of it (mark); frac stays 0 elsewhere. */
 static void share_pass(const gw_flowfield *f, const int *order, long n, const double *sf,
-                       double *frac)
+                       const unsigned char *mark, double *frac)
 {
     int nx = f->grid.nx;
     for (long i = 0; i < n; i++) {
         size_t k = (size_t)order[i];
+        if (!mark[k])
+            continue;
         int c = (int)(k % (size_t)nx);
         double num = sf[k], den = f->sink[k], q;
         if ((q = f->qe[k]) > 0) { num += q * frac[k + 1]; den += q; }
@@ -85,7 +90,8 @@ void gw_catchments_free(gw_catchments *c)
 typedef struct {
     int *order;
     long nplaced, unresolved;
-    double *sf, *frac;
+    double *sf, *frac;    /* zero outside the current feature's upstream cells */
+    gw_upstream up;
 } work;
 
 static void work_free(work *w)
@@ -93,6 +99,7 @@ static void work_free(work *w)
     free(w->order);
     free(w->sf);
     free(w->frac);
+    gw_upstream_free(&w->up);
 }
 
 static int work_init(const gw_flowfield *f, work *w)
@@ -108,16 +115,26 @@ static int work_init(const gw_flowfield *f, work *w)
     return w->unresolved < 0 ? -1 : 0;
 }
 
-/* Fill w->frac for feature feat (w->sf is left zeroed). */
-static void feature_pass(const gw_flowfield *f, work *w, int feat)
+/* Fill w->frac for feature feat over w->up, its upstream cells (w->sf is
+ * left zeroed; the caller clears frac with clear_pass). */
+static int feature_pass(const gw_flowfield *f, work *w, int feat, gw_error *err)
 {
+    if (gw_upstream_of_feature(f, feat, &w->up, err) != 0)
+        return -1;
     for (int i = 0; i < f->nexch; i++)
         if (f->exch[i].feature == feat && f->exch[i].q < 0)
             w->sf[f->exch[i].cell] -= f->exch[i].q;
-    share_pass(f, w->order, w->nplaced, w->sf, w->frac);
+    share_pass(f, w->order, w->nplaced, w->sf, w->up.mark, w->frac);
     for (int i = 0; i < f->nexch; i++)
         if (f->exch[i].feature == feat)
             w->sf[f->exch[i].cell] = 0.0;
+    return 0;
+}
+
+static void clear_pass(work *w)
+{
+    for (long i = 0; i < w->up.n; i++)
+        w->frac[w->up.cell[i]] = 0.0;
 }
 
 int gw_catchment_share(const gw_problem *p, const gw_flowfield *f, int feature, double *frac,
@@ -130,10 +147,11 @@ int gw_catchment_share(const gw_problem *p, const gw_flowfield *f, int feature, 
         work_free(&w);
         return gw_fail(err, "out of memory computing catchments");
     }
-    feature_pass(f, &w, feature);
-    memcpy(frac, w.frac, gw_grid_ncells(&f->grid) * sizeof *frac);
+    int rc = feature_pass(f, &w, feature, err);
+    if (rc == 0)
+        memcpy(frac, w.frac, gw_grid_ncells(&f->grid) * sizeof *frac);
     work_free(&w);
-    return 0;
+    return rc;
 }
 
 int gw_catchments_compute(const gw_problem *p, const gw_flowfield *f, gw_catchments *c,
@@ -181,10 +199,15 @@ int gw_catchments_compute(const gw_problem *p, const gw_flowfield *f, gw_catchme
     for (int feat = 0; feat < nf; feat++) {
         if (!c->discharge[feat])
             continue;
-        feature_pass(f, &w, feat);
+        if (feature_pass(f, &w, feat, err) != 0) {
+            work_free(&w);
+            gw_catchments_free(c);
+            return -1;
+        }
         const double *fr = w.frac;
         double a = 0.0, r = 0.0, mixed = 0.0;
-        for (size_t k = 0; k < nc; k++) {
+        for (long u = 0; u < w.up.n; u++) {
+            size_t k = (size_t)w.up.cell[u];
             if (fr[k] > 1e-12 && fr[k] < 1.0 - 1e-12)
                 mixed += area;
             if (!f->active[k] || fr[k] <= 0.0)
@@ -212,6 +235,7 @@ int gw_catchments_compute(const gw_problem *p, const gw_flowfield *f, gw_catchme
             }
         }
         c->received[feat] = tot;
+        clear_pass(&w);
     }
     work_free(&w);
     return 0;

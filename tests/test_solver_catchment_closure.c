@@ -14,6 +14,7 @@
 #include <stddef.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <string.h>
 #include <cmocka.h>
 
 #include "solver/budget.h"
@@ -23,6 +24,7 @@
 #include "solver/problem.h"
 #include "solver/rasterize.h"
 #include "solver/solve.h"
+#include "solver/upstream.h"
 #include "fixture_strip.h"
 
 enum { NX = 90, NY = 70 };
@@ -178,11 +180,75 @@ static void test_losing_stream(void **state)
     gw_problem_free(p);
 }
 
+/* The upstream sets that limit the share passes, against a plain fixed
+ * point: a cell is upstream of a feature if the feature takes water in it,
+ * or if it sends water across a face to a cell that is (repeated sweeps
+ * until nothing changes).  And the share is zero outside the set. */
+static void test_upstream_sets(void **state)
+{
+    (void)state;
+    gw_problem *p = model(GW_CONFINED, 26.5, 24.0);   /* losing upper reaches too */
+    gw_solution sol = {0};
+    fixture_solve_tight(p, &sol, 1e-10);
+    gw_error err = {{0}};
+    gw_flowfield f;
+    if (gw_flowfield_compute(p, &sol, &f, &err)) fail_msg("flow field: %s", err.msg);
+    const int n = NX * NY;
+    unsigned char *ref = malloc(n);
+    double *share = malloc(n * sizeof *share);
+    assert_non_null(ref);
+    assert_non_null(share);
+    gw_upstream u = {0};
+    for (int feat = 1; feat < p->nfeatures; feat++) {
+        memset(ref, 0, n);
+        for (int i = 0; i < f.nexch; i++)
+            if (f.exch[i].feature == feat && f.exch[i].q < 0.0 && p->active[f.exch[i].cell])
+                ref[f.exch[i].cell] = 1;
+        for (int changed = 1; changed;) {
+            changed = 0;
+            for (int k = 0; k < n; k++) {
+                if (ref[k] || !p->active[k])
+                    continue;
+                int c = k % NX;
+                int to = (c + 1 < NX && f.qe[k] > 0 && ref[k + 1]) ||
+                         (c > 0 && f.qe[k - 1] < 0 && ref[k - 1]) ||
+                         (k + NX < n && f.qs[k] > 0 && ref[k + NX]) ||
+                         (k >= NX && f.qs[k - NX] < 0 && ref[k - NX]);
+                if (to) {
+                    ref[k] = 1;
+                    changed = 1;
+                }
+            }
+        }
+        if (gw_upstream_of_feature(&f, feat, &u, &err)) fail_msg("upstream: %s", err.msg);
+        if (gw_catchment_share(p, &f, feat, share, &err)) fail_msg("share: %s", err.msg);
+        long nref = 0, outside = 0;
+        for (int k = 0; k < n; k++) {
+            nref += ref[k];
+            assert_int_equal(u.mark[k], ref[k]);
+            if (!u.mark[k] && share[k] != 0.0)
+                outside++;
+        }
+        print_message("    %-12s %5ld cells upstream (fixed point %ld), share outside them: %ld cells\n",
+                      p->features[feat].name, u.n, nref, outside);
+        assert_int_equal(u.n, nref);
+        assert_true(u.n > 0);
+        assert_int_equal(outside, 0);
+    }
+    gw_upstream_free(&u);
+    free(ref);
+    free(share);
+    gw_flowfield_free(&f);
+    gw_solution_free(&sol);
+    gw_problem_free(p);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_recharge_only),
         cmocka_unit_test(test_losing_stream),
+        cmocka_unit_test(test_upstream_sets),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
