@@ -30,18 +30,25 @@ void gw_crossing_log_free(gw_crossing_log *l)
     memset(l, 0, sizeof *l);
 }
 
-/* Open addressing on the face id; each used slot heads a chain of the
- * crossings of that face (newest first). */
+/* Open addressing on the face id; each used slot heads a chain of blocks
+ * holding that face's crossings, newest block first.  A block fills one
+ * cache line, so a lookup reads a face's crossings in one or two loads
+ * instead of one per crossing. */
+#define BLOCK_N 6
+struct block {
+    double along[BLOCK_N];
+    unsigned char fate[BLOCK_N];
+    unsigned char n;
+    int next;               /* older block of the same face, -1 at the end */
+};
+
 struct gw_fate_map {
     size_t *key;            /* face + 1; 0 marks an empty slot */
-    long *head;
+    int *head;              /* newest block of the face */
     size_t nslot, used;
-    struct entry {
-        double along;
-        long next;
-        unsigned char fate;
-    } *e;
-    long ne, ecap;
+    struct block *b;
+    long nb, bcap;
+    long ne;                /* crossings remembered */
 };
 
 static size_t slot_of(const gw_fate_map *m, size_t face)
@@ -64,46 +71,56 @@ void gw_fate_map_free(gw_fate_map *m)
         return;
     free(m->key);
     free(m->head);
-    free(m->e);
+    free(m->b);
     free(m);
 }
 
 static int grow_slots(gw_fate_map *m)
 {
-    gw_fate_map b = {.nslot = m->nslot ? 2 * m->nslot : 4096};
-    b.key = calloc(b.nslot, sizeof *b.key);
-    b.head = malloc(b.nslot * sizeof *b.head);
-    if (!b.key || !b.head) {
-        free(b.key);
-        free(b.head);
+    gw_fate_map g = {.nslot = m->nslot ? 2 * m->nslot : 4096};
+    g.key = calloc(g.nslot, sizeof *g.key);
+    g.head = malloc(g.nslot * sizeof *g.head);
+    if (!g.key || !g.head) {
+        free(g.key);
+        free(g.head);
         return -1;
     }
     for (size_t i = 0; i < m->nslot; i++)
         if (m->key[i]) {
-            size_t j = slot_of(&b, m->key[i] - 1);
-            b.key[j] = m->key[i];
-            b.head[j] = m->head[i];
+            size_t j = slot_of(&g, m->key[i] - 1);
+            g.key[j] = m->key[i];
+            g.head[j] = m->head[i];
         }
     free(m->key);
     free(m->head);
-    m->key = b.key;
-    m->head = b.head;
-    m->nslot = b.nslot;
+    m->key = g.key;
+    m->head = g.head;
+    m->nslot = g.nslot;
+    return 0;
+}
+
+/* A new, empty block in front of slot s's chain; -1 when out of memory. */
+static int new_block(gw_fate_map *m, size_t s)
+{
+    if (m->nb == m->bcap) {
+        long nc = m->bcap ? 2 * m->bcap : 4096;
+        if (nc > 0x7fffffffL)
+            return -1;
+        struct block *nb = realloc(m->b, (size_t)nc * sizeof *nb);
+        if (!nb)
+            return -1;
+        m->b = nb;
+        m->bcap = nc;
+    }
+    struct block *b = &m->b[m->nb];
+    b->n = 0;
+    b->next = m->head[s];
+    m->head[s] = (int)m->nb++;
     return 0;
 }
 
 int gw_fate_map_learn(gw_fate_map *m, const gw_crossing_log *l)
 {
-    if (m->ne + l->n > m->ecap) {
-        long nc = m->ecap ? m->ecap : 4096;
-        while (nc < m->ne + l->n)
-            nc *= 2;
-        struct entry *ne = realloc(m->e, (size_t)nc * sizeof *ne);
-        if (!ne)
-            return -1;
-        m->e = ne;
-        m->ecap = nc;
-    }
     for (long i = 0; i < l->n; i++) {
         const gw_face_crossing *c = &l->c[i];
         if (2 * (m->used + 1) > m->nslot && grow_slots(m) != 0)
@@ -114,8 +131,13 @@ int gw_fate_map_learn(gw_fate_map *m, const gw_crossing_log *l)
             m->head[s] = -1;
             m->used++;
         }
-        m->e[m->ne] = (struct entry){.along = c->along, .next = m->head[s], .fate = c->fate};
-        m->head[s] = m->ne++;
+        if ((m->head[s] < 0 || m->b[m->head[s]].n == BLOCK_N) && new_block(m, s) != 0)
+            return -1;
+        struct block *b = &m->b[m->head[s]];
+        b->along[b->n] = c->along;
+        b->fate[b->n] = c->fate;
+        b->n++;
+        m->ne++;
     }
     return 0;
 }
@@ -129,15 +151,18 @@ int gw_fate_map_lookup(const gw_fate_map *m, size_t face, double along, double t
         return -1;
     double dlo = HUGE_VAL, dhi = HUGE_VAL;
     int lo = -1, hi = -1;
-    for (long i = m->head[s]; i >= 0; i = m->e[i].next) {
-        double d = along - m->e[i].along;
-        if (d >= 0.0 && d <= tol && d < dlo) {
-            dlo = d;
-            lo = m->e[i].fate;
-        }
-        if (d <= 0.0 && -d <= tol && -d < dhi) {
-            dhi = -d;
-            hi = m->e[i].fate;
+    for (int bi = m->head[s]; bi >= 0; bi = m->b[bi].next) {
+        const struct block *b = &m->b[bi];
+        for (int i = 0; i < b->n; i++) {
+            double d = along - b->along[i];
+            if (d >= 0.0 && d <= tol && d < dlo) {
+                dlo = d;
+                lo = b->fate[i];
+            }
+            if (d <= 0.0 && -d <= tol && -d < dhi) {
+                dhi = -d;
+                hi = b->fate[i];
+            }
         }
     }
     return lo >= 0 && lo == hi ? lo : -1;

@@ -3,7 +3,9 @@
 #include "grid_order.h"
 
 #include <cholmod.h>
+#include <dlfcn.h>
 #include <math.h>
+#include <pthread.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -65,8 +67,35 @@ static int unknown(const gw_problem *p, size_t k)
     return p->active[k] && p->fixed_feature[k] < 0;
 }
 
+/* Debian's CHOLMOD 3 runs small OpenMP loops inside the supernodal
+ * factorization with a fixed team of 4 threads, whatever the machine,
+ * while OpenBLAS already runs the dense blocks on every core.  On two
+ * cores the extra team only contends for them: the 1 M-cell bench factor
+ * took 1.7 to 1.9 s with it and 1.2 to 1.3 s with OpenMP regions run
+ * serially (docs/performance.md).  So those regions are made serial,
+ * unless the user set OMP_MAX_ACTIVE_LEVELS.  libgomp is looked up at run
+ * time: it is CHOLMOD's dependency, not ours. */
+static void serialize_openmp(void)
+{
+    if (getenv("OMP_MAX_ACTIVE_LEVELS"))
+        return;
+    void *self = dlopen(NULL, RTLD_NOW);
+    if (!self)
+        return;
+    void *sym = dlsym(self, "omp_set_max_active_levels");
+    if (sym) {
+        void (*set_levels)(int);
+        memcpy(&set_levels, &sym, sizeof set_levels);   /* object -> function pointer */
+        set_levels(0);
+    }
+    dlclose(self);
+}
+
+static pthread_once_t openmp_once = PTHREAD_ONCE_INIT;
+
 gw_solver *gw_solver_new(const gw_problem *p, const gw_solve_options *opt, gw_error *err)
 {
+    pthread_once(&openmp_once, serialize_openmp);
     if (gw_problem_check_bounded(p, err))
         return NULL;
     const gw_grid *g = &p->grid;
@@ -320,10 +349,18 @@ static cholmod_factor *analyse(gw_solver *s)
     return L;
 }
 
+/* Whether the factor on hand is of the matrix now assembled (then only the
+ * right-hand side changed: a sweep member, or a repeated state). */
+static int factor_current(const gw_solver *s)
+{
+    size_t nnz = (size_t)((int *)s->A->p)[s->n];
+    return s->have_factor && memcmp(s->x_factored, s->A->x, nnz * sizeof(double)) == 0;
+}
+
 static int factorize(gw_solver *s, gw_solution *sol, gw_error *err)
 {
     size_t nnz = (size_t)((int *)s->A->p)[s->n];
-    if (s->have_factor && memcmp(s->x_factored, s->A->x, nnz * sizeof(double)) == 0)
+    if (factor_current(s))
         return 0;   /* only the right-hand side changed */
     double t0 = now();
     if (!s->L) {
@@ -505,8 +542,11 @@ int gw_solver_run(gw_solver *s, const gw_problem *p, const double *start, gw_sol
         }
         /* Drains that fell dry and perched streams may leave an area with
          * no head-controlling boundary; the factorization of such a
-         * semi-definite matrix need not fail visibly, so check the links. */
-        if (changed && (it > 0 || start) && gw_problem_check_bounded_state(p, on, it, err)) {
+         * semi-definite matrix need not fail visibly, so check the links
+         * (not needed when the matrix is the one already factorized: it
+         * was checked, or is the all-connected start, checked up front). */
+        if (changed && (it > 0 || start) && !factor_current(s) &&
+            gw_problem_check_bounded_state(p, on, it, err)) {
             rc = -1;
             break;
         }
