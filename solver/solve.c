@@ -1,11 +1,12 @@
 #include "solve.h"
 
 #include "grid_order.h"
+#include "lib_threads.h"
+#include "parallel.h"
+#include "split_factor.h"
 
 #include <cholmod.h>
-#include <dlfcn.h>
 #include <math.h>
-#include <pthread.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -21,7 +22,10 @@ struct gw_solver {
     int *pattern_fixed;
     cholmod_common c;
     cholmod_sparse *A;     /* lower triangle, fixed pattern */
-    cholmod_factor *L;
+    cholmod_factor *L;     /* whole-grid factor, or NULL when split */
+    gw_split *split;       /* two halves side by side (split_factor.h), or NULL */
+    int planned;           /* the factorization has been planned and analysed */
+    double *xsplit;        /* n: solution of the split solve */
     cholmod_dense *b;
     double *x_factored;    /* A values at the last numeric factorization */
     int have_factor;
@@ -34,6 +38,11 @@ void gw_solve_options_default(gw_solve_options *o)
     o->resid_tol = 1e-8;
     o->max_iter = 100;
     o->min_thick = 1e-3;
+    /* GW_SPLIT=1 forces the two-halves factorization wherever the grid
+     * splits, GW_SPLIT=-1 turns it off (tests run the verification models
+     * both ways; benchmarks compare). */
+    const char *v = getenv("GW_SPLIT");
+    o->split = v && !strcmp(v, "1") ? 1 : v && !strcmp(v, "-1") ? -1 : 0;
 }
 
 static double now(void)
@@ -51,6 +60,8 @@ void gw_solver_free(gw_solver *s)
         cholmod_free_sparse(&s->A, &s->c);
     if (s->L)
         cholmod_free_factor(&s->L, &s->c);
+    gw_split_free(s->split);
+    free(s->xsplit);
     if (s->b)
         cholmod_free_dense(&s->b, &s->c);
     cholmod_finish(&s->c);
@@ -67,35 +78,9 @@ static int unknown(const gw_problem *p, size_t k)
     return p->active[k] && p->fixed_feature[k] < 0;
 }
 
-/* Debian's CHOLMOD 3 runs small OpenMP loops inside the supernodal
- * factorization with a fixed team of 4 threads, whatever the machine,
- * while OpenBLAS already runs the dense blocks on every core.  On two
- * cores the extra team only contends for them: the 1 M-cell bench factor
- * took 1.7 to 1.9 s with it and 1.2 to 1.3 s with OpenMP regions run
- * serially (docs/performance.md).  So those regions are made serial,
- * unless the user set OMP_MAX_ACTIVE_LEVELS.  libgomp is looked up at run
- * time: it is CHOLMOD's dependency, not ours. */
-static void serialize_openmp(void)
-{
-    if (getenv("OMP_MAX_ACTIVE_LEVELS"))
-        return;
-    void *self = dlopen(NULL, RTLD_NOW);
-    if (!self)
-        return;
-    void *sym = dlsym(self, "omp_set_max_active_levels");
-    if (sym) {
-        void (*set_levels)(int);
-        memcpy(&set_levels, &sym, sizeof set_levels);   /* object -> function pointer */
-        set_levels(0);
-    }
-    dlclose(self);
-}
-
-static pthread_once_t openmp_once = PTHREAD_ONCE_INIT;
-
 gw_solver *gw_solver_new(const gw_problem *p, const gw_solve_options *opt, gw_error *err)
 {
-    pthread_once(&openmp_once, serialize_openmp);
+    gw_lib_threads_init();
     if (gw_problem_check_bounded(p, err))
         return NULL;
     const gw_grid *g = &p->grid;
@@ -357,47 +342,116 @@ static int factor_current(const gw_solver *s)
     return s->have_factor && memcmp(s->x_factored, s->A->x, nnz * sizeof(double)) == 0;
 }
 
+/* Message for a matrix that is not positive definite near unknown j. */
+static int singular_at(const gw_solver *s, int j, gw_error *err)
+{
+    int k = s->cell_of[j];
+    return gw_fail(err,
+                   "the conductance matrix is singular near column %d, row %d (x %.6g, y %.6g): "
+                   "this part of the aquifer has no head-controlling boundary in the current state "
+                   "(for instance only drains that have fallen dry, or streams perched above the water table), "
+                   "or conductivities, thicknesses or conductances there differ from their neighbours' by "
+                   "so many orders of magnitude that the system cannot be solved in double precision",
+                   k % s->grid.nx + 1, k / s->grid.nx + 1, gw_grid_xc(&s->grid, k % s->grid.nx),
+                   gw_grid_yc(&s->grid, k / s->grid.nx));
+}
+
+/* Factorize two halves side by side (split_factor.h) from this many
+ * unknowns, when two or more CPUs are online.  On 1 million cells the
+ * split saves 0.2 to 0.3 s of a 3 s run, but the triangular solve does not
+ * get faster, so a sweep member's share of the first run would rise from
+ * 0.07-0.09 to 0.10-0.13 (docs/performance.md); at 4 million it saves
+ * 2 to 3 s of 15.  GW_SPLIT=1 forces it at any size. */
+#define GW_SPLIT_MIN 2000000
+
+/* First factorization: choose whole or split, and analyse. */
+static int plan(gw_solver *s, gw_error *err)
+{
+    const char *why = NULL;
+    int want = s->opt.split > 0 ||
+               (s->opt.split == 0 && s->n >= GW_SPLIT_MIN && gw_default_threads() >= 2);
+    if (want) {
+        s->split = gw_split_new(s->grid.nx, s->grid.ny, s->idx, s->n, s->A, &why, err);
+        if (!s->split && !why)
+            return -1;
+    }
+    if (s->split) {
+        s->xsplit = malloc((size_t)s->n * sizeof *s->xsplit);
+        if (!s->xsplit)
+            return gw_fail(err, "out of memory setting up the solver");
+        snprintf(s->describe, sizeof s->describe,
+                 "CHOLMOD %d.%d.%d, ordering grid nested dissection, two halves side by side "
+                 "(separating column of %d unknowns), supernodal",
+                 CHOLMOD_MAIN_VERSION, CHOLMOD_SUB_VERSION, CHOLMOD_SUBSUB_VERSION,
+                 gw_split_separator(s->split));
+        s->planned = 1;
+        return 0;
+    }
+    s->L = analyse(s);
+    if (!s->L || s->c.status < CHOLMOD_OK)
+        return gw_fail(err, "sparse analysis failed (CHOLMOD status %d)", s->c.status);
+    snprintf(s->describe, sizeof s->describe, "CHOLMOD %d.%d.%d, ordering %s, %s",
+             CHOLMOD_MAIN_VERSION, CHOLMOD_SUB_VERSION, CHOLMOD_SUBSUB_VERSION,
+             s->L->ordering == CHOLMOD_AMD ? "AMD" : s->L->ordering == CHOLMOD_METIS ? "METIS"
+             : s->L->ordering == CHOLMOD_NESDIS ? "nested dissection"
+             : s->L->ordering == CHOLMOD_GIVEN ? "grid nested dissection" : "other",
+             s->L->is_super ? "supernodal" : "simplicial");
+    s->planned = 1;
+    return 0;
+}
+
 static int factorize(gw_solver *s, gw_solution *sol, gw_error *err)
 {
     size_t nnz = (size_t)((int *)s->A->p)[s->n];
     if (factor_current(s))
         return 0;   /* only the right-hand side changed */
     double t0 = now();
-    if (!s->L) {
-        s->L = analyse(s);
+    if (!s->planned) {
+        int rc = plan(s, err);
         sol->timing.analyse += now() - t0;
-        if (!s->L || s->c.status < CHOLMOD_OK)
-            return gw_fail(err, "sparse analysis failed (CHOLMOD status %d)", s->c.status);
-        snprintf(s->describe, sizeof s->describe, "CHOLMOD %d.%d.%d, ordering %s, %s",
-                 CHOLMOD_MAIN_VERSION, CHOLMOD_SUB_VERSION, CHOLMOD_SUBSUB_VERSION,
-                 s->L->ordering == CHOLMOD_AMD ? "AMD" : s->L->ordering == CHOLMOD_METIS ? "METIS"
-                 : s->L->ordering == CHOLMOD_NESDIS ? "nested dissection"
-                 : s->L->ordering == CHOLMOD_GIVEN ? "grid nested dissection" : "other",
-                 s->L->is_super ? "supernodal" : "simplicial");
+        if (rc != 0)
+            return -1;
         t0 = now();
     }
-    int ok = cholmod_factorize(s->A, s->L, &s->c);
-    sol->timing.factorize += now() - t0;
-    sol->factorizations++;
-    if (!ok || s->c.status == CHOLMOD_NOT_POSDEF) {
-        s->have_factor = 0;
-        int col = (int)s->L->minor;
-        if (col >= 0 && col < s->n) {
-            int k = s->cell_of[col];
-            return gw_fail(err,
-                           "the conductance matrix is singular near column %d, row %d (x %.6g, y %.6g): "
-                           "this part of the aquifer has no head-controlling boundary in the current state "
-                           "(for instance only drains that have fallen dry, or streams perched above the water table), "
-                           "or conductivities, thicknesses or conductances there differ from their neighbours' by "
-                           "so many orders of magnitude that the system cannot be solved in double precision",
-                           k % s->grid.nx + 1, k / s->grid.nx + 1, gw_grid_xc(&s->grid, k % s->grid.nx),
-                           gw_grid_yc(&s->grid, k / s->grid.nx));
+    s->have_factor = 0;
+    if (s->split) {
+        int bad = -1;
+        int rc = gw_split_factorize(s->split, s->A, &bad, err);
+        sol->timing.factorize += now() - t0;
+        sol->factorizations++;
+        if (rc > 0)
+            return singular_at(s, bad, err);
+        if (rc < 0)
+            return -1;
+    } else {
+        int ok = cholmod_factorize(s->A, s->L, &s->c);
+        sol->timing.factorize += now() - t0;
+        sol->factorizations++;
+        if (!ok || s->c.status == CHOLMOD_NOT_POSDEF) {
+            int col = (int)s->L->minor;
+            if (col >= 0 && col < s->n)
+                return singular_at(s, col, err);
+            return gw_fail(err, "factorization failed (CHOLMOD status %d)", s->c.status);
         }
-        return gw_fail(err, "factorization failed (CHOLMOD status %d)", s->c.status);
     }
     memcpy(s->x_factored, s->A->x, nnz * sizeof(double));
     s->have_factor = 1;
     return 0;
+}
+
+/* Heads of the unknowns for the current right-hand side: a pointer to n
+ * values, owned by the solver or by *tmp (free with cholmod_free_dense). */
+static const double *solve_system(gw_solver *s, cholmod_dense **tmp, gw_error *err)
+{
+    *tmp = NULL;
+    if (s->split)
+        return gw_split_solve(s->split, s->b->x, s->xsplit, err) == 0 ? s->xsplit : NULL;
+    *tmp = cholmod_solve(CHOLMOD_A, s->L, s->b, &s->c);
+    if (!*tmp) {
+        gw_fail(err, "triangular solve failed (CHOLMOD status %d)", s->c.status);
+        return NULL;
+    }
+    return (*tmp)->x;
 }
 
 static int same_pattern(const gw_solver *s, const gw_problem *p)
@@ -555,13 +609,13 @@ int gw_solver_run(gw_solver *s, const gw_problem *p, const double *start, gw_sol
             break;
         }
         t0 = now();
-        cholmod_dense *x = cholmod_solve(CHOLMOD_A, s->L, s->b, &s->c);
+        cholmod_dense *x = NULL;
+        const double *xv = solve_system(s, &x, err);
         sol->timing.solve += now() - t0;
-        if (!x) {
-            rc = gw_fail(err, "triangular solve failed (CHOLMOD status %d)", s->c.status);
+        if (!xv) {
+            rc = -1;
             break;
         }
-        const double *xv = x->x;
         dh = 0.0;
         for (int j = 0; j < s->n; j++) {
             int k = s->cell_of[j];

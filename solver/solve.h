@@ -18,6 +18,12 @@ typedef struct {
     double resid_tol;    /* max cell balance residual / total inflow (default 1e-8) */
     int max_iter;        /* nonlinear iterations (default 100) */
     double min_thick;    /* unconfined: saturated-thickness floor, L (default 1e-3) */
+    /* Factorize the grid as two halves side by side (split_factor.h):
+     * 0 automatic (from 2 million unknowns with two or more CPUs), 1 whenever
+     * the grid has a useful split, -1 never.  Same heads to round-off.
+     * The default comes from GW_SPLIT in the environment when it is set
+     * to 1 or -1 (for tests and benchmarks). */
+    int split;
 } gw_solve_options;
 
 void gw_solve_options_default(gw_solve_options *o);

@@ -11,7 +11,10 @@ also checks the matrix properties the theory promises: symmetric, positive
 diagonal, non-positive off-diagonals, weakly diagonally dominant (an
 M-matrix, hence SPD once any head-controlling boundary is present).
 
-Environment: GW_COMMAND (the built command).  Exit 0 on success.
+Environment: GW_COMMAND (the built command); GW_SPLIT=1 (ctest's
+check_scipy_matrix_split) makes the command factorize the grid as two halves
+side by side, and the heads must then agree with SciPy just the same.  Exit
+0 on success.
 """
 import json
 import os
@@ -147,8 +150,12 @@ def main():
         print("balance: in %.8g out %.8g discrepancy %.3e %%"
               % (report["balance"]["inflow"], report["balance"]["outflow"],
                  report["balance"]["discrepancy_percent"]))
+        print("method: %s" % report["solver"]["method"])
         if not report["solver"]["converged"]:
             failures.append("solver did not converge")
+        # GW_SPLIT=1: the heads must come from the two-halves factorization.
+        if os.environ.get("GW_SPLIT") == "1" and "two halves" not in report["solver"]["method"]:
+            failures.append("GW_SPLIT=1 but the solver did not split the grid")
         if not diff <= 1e-8:
             failures.append("heads differ from SciPy by %.3e m" % diff)
         if not abs(report["balance"]["discrepancy_percent"]) < 1e-6:

@@ -4,7 +4,7 @@
 set -euo pipefail
 PKGS=(
   build-essential cmake pkg-config
-  libsuitesparse-dev libopenblas0-pthread libopenblas-dev
+  libsuitesparse-dev libopenblas0-pthread libopenblas-dev libopenblas-pthread-dev
   libpng-dev libcmocka-dev libfyaml-dev libcairo2-dev libgdal-dev gdal-bin
   libgsl-dev
   python3 python3-numpy python3-scipy python3-gdal python3-yaml
