@@ -517,25 +517,47 @@ static int known_batch_item(void *ctx, long i, gw_error *err)
     return b->fn(b->ctx, b->item[i], slot, err);
 }
 
-/* Run fn on every item, downstream first by key, a batch at a time; what
- * each batch's paths crossed is learned before the next batch starts. */
-static int known_run(lattice *L, long *item, const long *key, long n, known_item_fn fn,
-                     void *ctx, gw_error *err)
+typedef long (*known_key_fn)(void *ctx, long item);
+
+/* Run fn on items 0..n-1, downstream first (key: a cell's rank), a batch
+ * at a time; what each batch's paths crossed is learned before the next
+ * batch starts. */
+static int known_run(lattice *L, long n, known_key_fn key_fn, known_item_fn fn, void *ctx,
+                     gw_error *err)
 {
-    if (sort_downstream(item, key, n) != 0)
-        return gw_fail(err, "out of memory tracing a capture zone");
+    long *item = malloc((size_t)(n ? n : 1) * sizeof *item);
+    long *key = malloc((size_t)(n ? n : 1) * sizeof *key);
+    int rc = -1;
+    if (!item || !key) {
+        gw_fail(err, "out of memory tracing a capture zone");
+        goto done;
+    }
+    for (long i = 0; i < n; i++) {
+        item[i] = i;
+        key[i] = key_fn(ctx, i);
+    }
+    if (sort_downstream(item, key, n) != 0) {
+        gw_fail(err, "out of memory tracing a capture zone");
+        goto done;
+    }
     for (long b0 = 0; b0 < n; b0 += KNOWN_BATCH) {
         long nb = n - b0 < KNOWN_BATCH ? n - b0 : KNOWN_BATCH;
         known_batch job = {.L = L, .item = item + b0, .fn = fn, .ctx = ctx};
         if (gw_parallel_for(L->threads, nb, known_batch_item, &job, err) != 0)
-            return -1;
+            goto done;
         for (long i = 0; i < nb; i++) {
-            if (gw_fate_map_learn(L->known, &L->slot[i].log) != 0)
-                return gw_fail(err, "out of memory tracing a capture zone");
+            if (gw_fate_map_learn(L->known, &L->slot[i].log) != 0) {
+                gw_fail(err, "out of memory tracing a capture zone");
+                goto done;
+            }
             L->known_stops += L->slot[i].stops;
         }
     }
-    return 0;
+    rc = 0;
+done:
+    free(item);
+    free(key);
+    return rc;
 }
 
 /* Bisect crossing pt of a time-unlimited zone edge (writes px, py). */
@@ -558,27 +580,18 @@ static int bisect_edge(void *ctx, long pt, struct known_slot *slot, gw_error *er
     return 0;
 }
 
+/* Downstream rank of crossing pt (the midpoint of its lattice edge). */
+static long edge_key(void *ctx, long pt)
+{
+    const lattice *L = ctx;
+    int a = L->pa[pt], b = L->pb[pt];
+    return rank_at(L, 0.5 * (L->xs[a % L->NX] + L->xs[b % L->NX]),
+                   0.5 * (L->ys[a / L->NX] + L->ys[b / L->NX]));
+}
+
 static int bisect_edges(lattice *L, gw_error *err)
 {
-    long np = L->np;
-    long *pts = malloc((size_t)(np ? np : 1) * sizeof *pts);
-    long *key = malloc((size_t)(np ? np : 1) * sizeof *key);
-    int rc = -1;
-    if (!pts || !key) {
-        gw_fail(err, "out of memory tracing a capture zone");
-        goto done;
-    }
-    for (long i = 0; i < np; i++) {
-        int a = L->pa[i], b = L->pb[i];
-        pts[i] = i;
-        key[i] = rank_at(L, 0.5 * (L->xs[a % L->NX] + L->xs[b % L->NX]),
-                         0.5 * (L->ys[a / L->NX] + L->ys[b / L->NX]));
-    }
-    rc = known_run(L, pts, key, np, bisect_edge, L, err);
-done:
-    free(pts);
-    free(key);
-    return rc;
+    return known_run(L, L->np, edge_key, bisect_edge, L, err);
 }
 
 static void zone_free(gw_capzone *z)
@@ -916,27 +929,18 @@ static int track_node(void *ctx, long i, struct known_slot *slot, gw_error *err)
     return 0;
 }
 
+/* Downstream rank of queued node i's cell. */
+static long node_key(void *ctx, long i)
+{
+    const seeding *sd = ctx;
+    return sd->ws->rank[node_cell(sd, sd->todo[i])];
+}
+
 /* Track every queued node, downstream first; the queue is then emptied
  * by apply_node. */
 static int track_queued(seeding *sd, gw_error *err)
 {
-    long n = sd->ntodo;
-    long *item = malloc((size_t)(n ? n : 1) * sizeof *item);
-    long *key = malloc((size_t)(n ? n : 1) * sizeof *key);
-    int rc = -1;
-    if (!item || !key) {
-        gw_fail(err, "out of memory for the capture-zone lattice");
-        goto done;
-    }
-    for (long i = 0; i < n; i++) {
-        item[i] = i;
-        key[i] = sd->ws->rank[node_cell(sd, sd->todo[i])];
-    }
-    rc = known_run(sd->L, item, key, n, track_node, sd, err);
-done:
-    free(item);
-    free(key);
-    return rc;
+    return known_run(sd->L, sd->ntodo, node_key, track_node, sd, err);
 }
 
 /* State of node n from its tracked path (if still unknown); called in a

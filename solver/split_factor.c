@@ -100,50 +100,51 @@ static int half_matrix(half *h, const cholmod_sparse *A, const int *loc)
     int *cnt = calloc((size_t)h->m + 1, sizeof *cnt);
     if (!cnt)
         return -1;
-    size_t nnz = 0;
-    for (int j = 0; j < n; j++) {
-        if (loc[j] < 0)
-            continue;
-        for (int p = Ap[j]; p < Ap[j + 1]; p++) {
-            int i = Ai[p];
-            if (loc[i] < 0)
+    int *Mp = NULL, *Mi = NULL;
+    /* Pass 0 counts each local column's entries, pass 1 places them. */
+    for (int pass = 0; pass < 2; pass++) {
+        size_t nnz = 0;
+        for (int j = 0; j < n; j++) {
+            if (loc[j] < 0)
                 continue;
-            int li = loc[i], lj = loc[j];
-            cnt[li < lj ? li : lj]++;
-            nnz++;
-        }
-    }
-    h->M = cholmod_allocate_sparse((size_t)h->m, (size_t)h->m, nnz, 1, 1, -1, CHOLMOD_REAL, &h->c);
-    h->src = malloc((nnz ? nnz : 1) * sizeof *h->src);
-    if (!h->M || !h->src) {
-        free(cnt);
-        return -1;
-    }
-    int *Mp = h->M->p, *Mi = h->M->i;
-    Mp[0] = 0;
-    for (int c = 0; c < h->m; c++)
-        Mp[c + 1] = Mp[c] + cnt[c];
-    for (int c = 0; c < h->m; c++)
-        cnt[c] = Mp[c];
-    for (int j = 0; j < n; j++) {
-        if (loc[j] < 0)
-            continue;
-        for (int p = Ap[j]; p < Ap[j + 1]; p++) {
-            int i = Ai[p];
-            if (loc[i] < 0)
-                continue;
-            int li = loc[i], lj = loc[j];
-            int col = li < lj ? li : lj, row = li < lj ? lj : li;
-            int q = cnt[col]++;
-            /* Keep each column's rows sorted (a handful per column). */
-            while (q > Mp[col] && Mi[q - 1] > row) {
-                Mi[q] = Mi[q - 1];
-                h->src[q] = h->src[q - 1];
-                q--;
+            for (int p = Ap[j]; p < Ap[j + 1]; p++) {
+                int i = Ai[p];
+                if (loc[i] < 0)
+                    continue;
+                int li = loc[i], lj = loc[j];
+                int col = li < lj ? li : lj, row = li < lj ? lj : li;
+                nnz++;
+                if (pass == 0) {
+                    cnt[col]++;
+                    continue;
+                }
+                int q = cnt[col]++;
+                /* Keep each column's rows sorted (a handful per column). */
+                while (q > Mp[col] && Mi[q - 1] > row) {
+                    Mi[q] = Mi[q - 1];
+                    h->src[q] = h->src[q - 1];
+                    q--;
+                }
+                Mi[q] = row;
+                h->src[q] = (size_t)p;
             }
-            Mi[q] = row;
-            h->src[q] = (size_t)p;
         }
+        if (pass == 1)
+            break;
+        h->M = cholmod_allocate_sparse((size_t)h->m, (size_t)h->m, nnz, 1, 1, -1, CHOLMOD_REAL,
+                                       &h->c);
+        h->src = malloc((nnz ? nnz : 1) * sizeof *h->src);
+        if (!h->M || !h->src) {
+            free(cnt);
+            return -1;
+        }
+        Mp = h->M->p;
+        Mi = h->M->i;
+        Mp[0] = 0;
+        for (int c = 0; c < h->m; c++)
+            Mp[c + 1] = Mp[c] + cnt[c];
+        for (int c = 0; c < h->m; c++)
+            cnt[c] = Mp[c];
     }
     free(cnt);
     return 0;
