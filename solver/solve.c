@@ -4,6 +4,7 @@
 #include "lib_threads.h"
 #include "parallel.h"
 #include "split_factor.h"
+#include "sysmem.h"
 
 #include <cholmod.h>
 #include <math.h>
@@ -364,7 +365,25 @@ static int singular_at(const gw_solver *s, int j, gw_error *err)
  * 2 to 3 s of 15.  GW_SPLIT=1 forces it at any size. */
 #define GW_SPLIT_MIN 2000000
 
-/* First factorization: choose whole or split, and analyse. */
+/* Refuse a factorization that cannot fit: its values (8 bytes each) plus
+ * the matrix, vectors and CHOLMOD's workspace (about 100 bytes an
+ * unknown), against the memory still available. */
+static int memory_check(const gw_solver *s, double values, gw_error *err)
+{
+    double avail = gw_memory_available();
+    double need = 8.0 * values + 100.0 * s->n;
+    if (avail <= 0.0 || need <= avail)
+        return 0;
+    return gw_fail(err,
+                   "the grid's %d unknown heads need a Cholesky factor of %.3g values, about %.1f GB "
+                   "with the matrix, but only %.1f GB of memory is available: use a coarser grid or a "
+                   "smaller area (gwdivide solves directly and has no iterative solver for grids "
+                   "this large; docs/performance.md)",
+                   s->n, values, need / 1073741824.0, avail / 1073741824.0);
+}
+
+/* First factorization: choose whole or split, analyse, and check that the
+ * factor fits in memory. */
 static int plan(gw_solver *s, gw_error *err)
 {
     const char *why = NULL;
@@ -384,6 +403,8 @@ static int plan(gw_solver *s, gw_error *err)
                  "(separating column of %d unknowns), supernodal",
                  CHOLMOD_MAIN_VERSION, CHOLMOD_SUB_VERSION, CHOLMOD_SUBSUB_VERSION,
                  gw_split_separator(s->split));
+        if (memory_check(s, gw_split_factor_entries(s->split), err) != 0)
+            return -1;
         s->planned = 1;
         return 0;
     }
@@ -396,6 +417,9 @@ static int plan(gw_solver *s, gw_error *err)
              : s->L->ordering == CHOLMOD_NESDIS ? "nested dissection"
              : s->L->ordering == CHOLMOD_GIVEN ? "grid nested dissection" : "other",
              s->L->is_super ? "supernodal" : "simplicial");
+    double values = (double)s->L->xsize > s->c.lnz ? (double)s->L->xsize : s->c.lnz;
+    if (memory_check(s, values, err) != 0)
+        return -1;
     s->planned = 1;
     return 0;
 }

@@ -328,7 +328,7 @@ gw_split *gw_split_new(int nx, int ny, const int *idx, int n, const cholmod_spar
         gw_split_free(sp);
         return NULL;
     }
-    sp->lnz = sp->h[0].c.lnz + sp->h[1].c.lnz;
+    sp->lnz = (double)sp->h[0].L->xsize + (double)sp->h[1].L->xsize + 3.0 * (double)ns * (double)ns;
     return sp;
 oom:
     gw_fail(err, "out of memory (or CHOLMOD failure) analysing the two halves of the grid");

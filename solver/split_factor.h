@@ -42,7 +42,8 @@ int gw_split_factorize(gw_split *sp, const cholmod_sparse *A, int *bad_unknown, 
  * alias). */
 int gw_split_solve(gw_split *sp, const double *b, double *x, gw_error *err);
 
-/* Unknowns on the separator, and entries of the two halves' factors. */
+/* Unknowns on the separator, and the values (doubles) the factorization
+ * holds: both halves' factors and the dense blocks of the separator. */
 int gw_split_separator(const gw_split *sp);
 double gw_split_factor_entries(const gw_split *sp);
 

@@ -4,6 +4,8 @@
 #    extent given in map coordinates, nothing written;
 #  - a drain that goes dry, leaving the aquifer with no boundary, is
 #    detected as a singular system and explained, nothing written;
+#  - a grid whose Cholesky factor cannot fit in the memory available is
+#    refused before factorizing, with both figures, nothing written;
 #  - an unconfined model that does not converge within
 #    solver.max_iterations is rejected with its iteration history;
 #  - cells going dry are a warning that says how many and where, and the
@@ -106,6 +108,29 @@ expect_in drain.err "singular" "drain gone dry: says the system is singular"
 expect_in drain.err "fallen dry" "drain gone dry: says why"
 expect_in drain.err "x 0 to 300, y 0 to 200" "drain gone dry: extent in map coordinates"
 expect_absent drain-out "drain gone dry"
+
+# --- a factor that cannot fit in memory ---------------------------------------
+# GW_MEMORY_MB stands in for a small machine: a 300 x 300 grid needs some
+# 20 MB for its factor, so with 5 MB "available" the run must stop before
+# factorizing, give the numbers and write nothing.
+cat >big.yaml <<'YAML'
+units: {length: m, time: day}
+grid: {origin: [0, 0], cell_size: 10, columns: 300, rows: 300}
+aquifer: {type: confined, conductivity: 5, thickness: 20}
+recharge: 0.0005
+fixed_heads:
+  - {name: West, line: [[5, 0], [5, 3000]], head: 10}
+output: {maps: false}
+YAML
+GW_MEMORY_MB=5 run_gw bigmem -- run big.yaml --out big-out
+expect_rc 1 "factor too large for memory" bigmem
+expect_one_block bigmem
+expect_in bigmem.err "big.yaml" "factor too large: names the model file"
+expect_re bigmem.err "need a Cholesky factor of [0-9.e+]+ values, about [0-9.]+ GB" "factor too large: says what it needs"
+expect_in bigmem.err "GB of memory is available" "factor too large: says what there is"
+expect_absent big-out "factor too large"
+GW_MEMORY_MB=4000 run_gw bigok -- run big.yaml --out big-out
+expect_rc 0 "the same model with memory to spare" bigok
 
 # --- unconfined non-convergence ----------------------------------------------
 # A well drawing an unconfined aquifer down towards its base needs more than
