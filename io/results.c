@@ -146,6 +146,48 @@ static int warn_dry(gw_results *r)
                           gw_grid_yc(g, worst / g->nx), depth, u);
 }
 
+/* A pumping well whose cell went dry: the aquifer cannot deliver that rate
+ * there in steady state, and the heads, budgets and capture zone around it
+ * only mean the pumping was imposed.  One warning per well feature. */
+static int warn_dry_wells(gw_results *r)
+{
+    const gw_solution *s = &r->solution;
+    const gw_problem *p = r->problem;
+    const gw_grid *g = &p->grid;
+    const char *u = r->model && r->model->length_unit ? r->model->length_unit : "";
+    const char *t = r->model && r->model->time_unit ? r->model->time_unit : "";
+    for (int f = 0; f < p->nfeatures && p->type == GW_UNCONFINED; f++) {
+        if (p->features[f].type != GW_FEAT_WELL)
+            continue;
+        double rate = 0.0, depth = -1.0;
+        int worst = -1;
+        for (int i = 0; i < p->nwells; i++) {
+            const gw_well *w = &p->wells[i];
+            if (w->feature != f || !p->active[w->cell])
+                continue;
+            rate += w->rate;
+            double d = p->bottom[w->cell] - s->head[w->cell];
+            if (w->rate > 0.0 && d >= 0.0 && d > depth) {
+                depth = d;
+                worst = w->cell;
+            }
+        }
+        if (worst < 0)
+            continue;
+        if (gw_strlist_add(&r->warnings,
+                           "well '%s' is in a cell that went dry (column %d, row %d; x %.6g, y %.6g; head "
+                           "%.3g %s below the aquifer bottom): the aquifer cannot deliver its pumping of "
+                           "%.6g %s3/%s there in steady state, so the heads, budgets and capture zone around it "
+                           "are not meaningful; lower the rate, or check conductivity, bottom and "
+                           "recharge near the well",
+                           p->features[f].name, worst % g->nx + 1, worst / g->nx + 1,
+                           gw_grid_xc(g, worst % g->nx), gw_grid_yc(g, worst / g->nx), depth, u,
+                           rate, u, t) != 0)
+            return -1;
+    }
+    return 0;
+}
+
 int gw_results_check(gw_results *r, gw_error *err)
 {
     if (r->have_solution) {
@@ -153,7 +195,7 @@ int gw_results_check(gw_results *r, gw_error *err)
         if (!s->converged &&
             gw_strlist_add(&r->warnings, "the solution did not converge in %d iterations", s->iterations) != 0)
             return gw_fail(err, "out of memory");
-        if (s->ndry > 0 && warn_dry(r) != 0)
+        if (s->ndry > 0 && (warn_dry(r) != 0 || warn_dry_wells(r) != 0))
             return gw_fail(err, "out of memory");
     }
     if (r->have_solution && r->model && r->model->contour_interval > 0) {

@@ -9,7 +9,8 @@
 #  - an unconfined model that does not converge within
 #    solver.max_iterations is rejected with its iteration history;
 #  - cells going dry are a warning that says how many and where, and the
-#    water balance is still printed;
+#    water balance is still printed; a pumping well in a dry cell is named
+#    with the rate the aquifer cannot deliver;
 #  - a stream stage below its bed bottom is rejected with file:line:column;
 #  - a failure while the outputs are written (a file in the way of the out
 #    folder, a folder in the way of an output, a full disk simulated with a
@@ -168,6 +169,10 @@ expect_re dry.out "^ *balance +in [0-9.e+]+ m3/day, out [0-9.e+]+ m3/day" "dry c
 expect_in dry-out/report.json "cells went dry" "dry cells: warning in report.json"
 # The pumping well's cell is the driest: it is where the drawdown is deepest.
 expect_in dry.out "the driest is column 31, row 10 (x 305, y 105)" "dry cells: driest cell is the well's"
+# ...and the well itself is named: its pumping cannot be delivered there.
+expect_re dry.out "well 'Pump' is in a cell that went dry \(column 31, row 10; x 305, y 105; head [0-9.e+]+ m below the aquifer bottom\): the aquifer cannot deliver its pumping of 40 m3/day there" \
+    "dry cells: the pumping well in a dry cell is named with its rate"
+expect_in dry-out/report.json "well 'Pump' is in a cell that went dry" "dry cells: well warning in report.json"
 
 # --- stage below bed bottom ----------------------------------------------------
 cat >stage.yaml <<'YAML'
