@@ -4,6 +4,7 @@
 #include "lib_threads.h"
 #include "parallel.h"
 #include "split_factor.h"
+#include "super_solve.h"
 #include "sysmem.h"
 
 #include <cholmod.h>
@@ -26,7 +27,7 @@ struct gw_solver {
     cholmod_factor *L;     /* whole-grid factor, or NULL when split */
     gw_split *split;       /* two halves side by side (split_factor.h), or NULL */
     int planned;           /* the factorization has been planned and analysed */
-    double *xsplit;        /* n: solution of the split solve */
+    double *xbuf, *work;   /* n each: solution and scratch of the solves */
     cholmod_dense *b;
     double *x_factored;    /* A values at the last numeric factorization */
     int have_factor;
@@ -62,7 +63,8 @@ void gw_solver_free(gw_solver *s)
     if (s->L)
         cholmod_free_factor(&s->L, &s->c);
     gw_split_free(s->split);
-    free(s->xsplit);
+    free(s->xbuf);
+    free(s->work);
     if (s->b)
         cholmod_free_dense(&s->b, &s->c);
     cholmod_finish(&s->c);
@@ -394,10 +396,11 @@ static int plan(gw_solver *s, gw_error *err)
         if (!s->split && !why)
             return -1;
     }
+    s->xbuf = malloc((size_t)s->n * sizeof *s->xbuf);
+    s->work = malloc((size_t)s->n * sizeof *s->work);
+    if (!s->xbuf || !s->work)
+        return gw_fail(err, "out of memory setting up the solver");
     if (s->split) {
-        s->xsplit = malloc((size_t)s->n * sizeof *s->xsplit);
-        if (!s->xsplit)
-            return gw_fail(err, "out of memory setting up the solver");
         snprintf(s->describe, sizeof s->describe,
                  "CHOLMOD %d.%d.%d, ordering grid nested dissection, two halves side by side "
                  "(separating column of %d unknowns), supernodal",
@@ -471,7 +474,9 @@ static const double *solve_system(gw_solver *s, cholmod_dense **tmp, gw_error *e
 {
     *tmp = NULL;
     if (s->split)
-        return gw_split_solve(s->split, s->b->x, s->xsplit, err) == 0 ? s->xsplit : NULL;
+        return gw_split_solve(s->split, s->b->x, s->xbuf, err) == 0 ? s->xbuf : NULL;
+    if (gw_super_solve(s->L, s->b->x, s->xbuf, s->work) == 0)
+        return s->xbuf;
     *tmp = cholmod_solve(CHOLMOD_A, s->L, s->b, &s->c);
     if (!*tmp) {
         gw_fail(err, "triangular solve failed (CHOLMOD status %d)", s->c.status);
