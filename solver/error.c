@@ -23,8 +23,15 @@ int gw_fail_prefix(gw_error *e, const char *fmt, ...)
         vsnprintf(head, sizeof head, fmt, ap);
         va_end(ap);
         memcpy(old, e->msg, sizeof old);
-        int n = snprintf(e->msg, sizeof e->msg, "%s%s", head, old);
-        (void)n; /* truncation of very long messages is acceptable */
+        /* head then the old message, cut at the buffer's end (very long
+         * messages may lose their tail). */
+        size_t cap = sizeof e->msg - 1;
+        size_t hl = strnlen(head, sizeof head), ol = strnlen(old, sizeof old);
+        if (hl > cap) hl = cap;
+        if (ol > cap - hl) ol = cap - hl;
+        memcpy(e->msg, head, hl);
+        memcpy(e->msg + hl, old, ol);
+        e->msg[hl + ol] = '\0';
     }
     return -1;
 }

@@ -3,6 +3,7 @@
 #include "grid_order.h"
 #include "lib_threads.h"
 #include "parallel.h"
+#include "super_solve.h"
 
 #include <stdlib.h>
 #include <string.h>
@@ -32,7 +33,7 @@ typedef struct {
     cholmod_factor *L;
     double *Lss;          /* last ns x ns block of L, lower, column-major */
     int bad;              /* local unknown where the factorization failed, or -1 */
-    cholmod_dense *w;     /* forward-solve result, kept for the backward pass */
+    double *w;            /* m: forward-solve result, kept for the backward pass */
     double *g;            /* ns: L21 * w1 */
     int failed;           /* CHOLMOD failure other than "not positive definite" */
 } half;
@@ -56,13 +57,13 @@ static void half_free(half *h)
     if (h->started) {
         if (h->M) cholmod_free_sparse(&h->M, &h->c);
         if (h->L) cholmod_free_factor(&h->L, &h->c);
-        if (h->w) cholmod_free_dense(&h->w, &h->c);
         cholmod_finish(&h->c);
     }
     free(h->glob);
     free(h->src);
     free(h->Lss);
     free(h->g);
+    free(h->w);
     memset(h, 0, sizeof *h);
 }
 
@@ -217,7 +218,8 @@ static int plan_half(void *ctx, long d, gw_error *err)
         }
     h->Lss = calloc((size_t)sp->ns * (size_t)sp->ns, sizeof *h->Lss);
     h->g = malloc((size_t)sp->ns * sizeof *h->g);
-    if (!h->Lss || !h->g)
+    h->w = malloc((size_t)h->m * sizeof *h->w);
+    if (!h->Lss || !h->g || !h->w)
         goto done;
     j->status[d] = 0;
 done:
@@ -378,7 +380,7 @@ static int factor_half(void *ctx, long d, gw_error *err)
         h->bad = h->glob[((const int *)h->L->Perm)[mi]];
         return 0;
     }
-    if (!ok || h->c.status < CHOLMOD_OK || !h->L->is_super) {
+    if (!ok || h->c.status < CHOLMOD_OK || !gw_super_solve_ok(h->L)) {
         h->failed = 1;
         return 0;
     }
@@ -427,23 +429,15 @@ int gw_split_factorize(gw_split *sp, const cholmod_sparse *A, int *bad_unknown, 
 /* Forward pass of half d: w = L^-1 P [b_side; 0], g = L21 w1 = -Lss w_s. */
 static int forward_half(void *ctx, long d, gw_error *err)
 {
+    (void)err;
     gw_split *sp = ctx;
     half *h = &sp->h[d];
-    cholmod_dense *r = cholmod_allocate_dense((size_t)h->m, 1, (size_t)h->m, CHOLMOD_REAL, &h->c);
-    if (!r)
-        return gw_fail(err, "out of memory in the triangular solve");
-    double *rx = r->x;
     const int *P = h->L->Perm;
     for (int i = 0; i < h->m; i++)
-        rx[i] = P[i] < h->nd ? sp->b[h->glob[P[i]]] : 0.0;
-    if (h->w)
-        cholmod_free_dense(&h->w, &h->c);
-    h->w = cholmod_solve(CHOLMOD_L, h->L, r, &h->c);
-    cholmod_free_dense(&r, &h->c);
-    if (!h->w)
-        return gw_fail(err, "triangular solve failed (CHOLMOD status %d)", h->c.status);
+        h->w[i] = P[i] < h->nd ? sp->b[h->glob[P[i]]] : 0.0;
+    gw_super_lsolve(h->L, h->w);
     const int ns = sp->ns, inc = 1;
-    memcpy(h->g, (double *)h->w->x + h->nd, (size_t)ns * sizeof *h->g);
+    memcpy(h->g, h->w + h->nd, (size_t)ns * sizeof *h->g);
     dtrmv_("L", "N", "N", &ns, h->Lss, &ns, h->g, &inc);
     for (int t = 0; t < ns; t++)
         h->g[t] = -h->g[t];
@@ -454,22 +448,18 @@ static int forward_half(void *ctx, long d, gw_error *err)
  * z_s = xs and z1 = L11'^-1 (w1 - L21' xs): the side's heads. */
 static int backward_half(void *ctx, long d, gw_error *err)
 {
+    (void)err;
     gw_split *sp = ctx;
     half *h = &sp->h[d];
     const int ns = sp->ns, inc = 1;
-    double *v = h->w->x;
+    double *v = h->w;
     memcpy(v + h->nd, sp->xs, (size_t)ns * sizeof *v);
     dtrmv_("L", "T", "N", &ns, h->Lss, &ns, v + h->nd, &inc);
-    cholmod_dense *z = cholmod_solve(CHOLMOD_Lt, h->L, h->w, &h->c);
-    if (!z)
-        return gw_fail(err, "triangular solve failed (CHOLMOD status %d)", h->c.status);
-    const double *zx = z->x;
+    gw_super_ltsolve(h->L, v);
     const int *P = h->L->Perm;
     for (int i = 0; i < h->m; i++)
         if (P[i] < h->nd)
-            sp->x[h->glob[P[i]]] = zx[i];
-    cholmod_free_dense(&z, &h->c);
-    cholmod_free_dense(&h->w, &h->c);
+            sp->x[h->glob[P[i]]] = v[i];
     return 0;
 }
 

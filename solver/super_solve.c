@@ -1,17 +1,17 @@
 #include "super_solve.h"
 
-int gw_super_solve(const cholmod_factor *L, const double *b, double *x, double *work)
+int gw_super_solve_ok(const cholmod_factor *L)
 {
-    if (!L->is_super || !L->is_ll || L->xtype != CHOLMOD_REAL)
-        return -1;
-    const int n = (int)L->n, nsuper = (int)L->nsuper;
-    const int *Perm = L->Perm, *super = L->super, *pi = L->pi, *px = L->px, *s = L->s;
+    return L && L->is_super && L->is_ll && L->xtype == CHOLMOD_REAL;
+}
+
+/* L y = y, supernode by supernode: the diagonal block by columns, then
+ * its columns' entries below it into the later rows. */
+void gw_super_lsolve(const cholmod_factor *L, double *y)
+{
+    const int nsuper = (int)L->nsuper;
+    const int *super = L->super, *pi = L->pi, *px = L->px, *s = L->s;
     const double *Lx = L->x;
-    double *y = work;
-    for (int i = 0; i < n; i++)
-        y[i] = b[Perm[i]];
-    /* L y = P b, supernode by supernode: the diagonal block by columns,
-     * then its columns' entries below it into the later rows. */
     for (int k = 0; k < nsuper; k++) {
         const int k1 = super[k], nscol = super[k + 1] - k1;
         const int nsrow = pi[k + 1] - pi[k];
@@ -27,9 +27,15 @@ int gw_super_solve(const cholmod_factor *L, const double *b, double *x, double *
                 y[rows[r]] -= col[r] * yj;
         }
     }
-    /* L' z = y, the supernodes in reverse: each column takes the entries
-     * below the block from rows already solved, then the block backwards. */
-    for (int k = nsuper - 1; k >= 0; k--) {
+}
+
+/* L' y = y, the supernodes in reverse: each column takes the entries below
+ * the block from rows already solved, then the block backwards. */
+void gw_super_ltsolve(const cholmod_factor *L, double *y)
+{
+    const int *super = L->super, *pi = L->pi, *px = L->px, *s = L->s;
+    const double *Lx = L->x;
+    for (int k = (int)L->nsuper - 1; k >= 0; k--) {
         const int k1 = super[k], nscol = super[k + 1] - k1;
         const int nsrow = pi[k + 1] - pi[k];
         const int *rows = s + pi[k];
@@ -44,7 +50,19 @@ int gw_super_solve(const cholmod_factor *L, const double *b, double *x, double *
             y[k1 + j] = t / col[j];
         }
     }
+}
+
+int gw_super_solve(const cholmod_factor *L, const double *b, double *x, double *work)
+{
+    if (!gw_super_solve_ok(L))
+        return -1;
+    const int n = (int)L->n;
+    const int *Perm = L->Perm;
     for (int i = 0; i < n; i++)
-        x[Perm[i]] = y[i];
+        work[i] = b[Perm[i]];
+    gw_super_lsolve(L, work);
+    gw_super_ltsolve(L, work);
+    for (int i = 0; i < n; i++)
+        x[Perm[i]] = work[i];
     return 0;
 }

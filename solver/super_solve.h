@@ -11,9 +11,17 @@
 
 #include <cholmod.h>
 
-/* x = A^-1 b for A = P' L L' P, with L supernodal LL' (L->is_super,
- * L->is_ll) as cholmod_factorize leaves it.  work: L->n doubles.  x and b
- * may not alias.  Returns 0, or -1 when L is not such a factor. */
+/* Whether L is a factor these routines take: supernodal LL', real, as
+ * cholmod_factorize leaves it for a supernodal analysis. */
+int gw_super_solve_ok(const cholmod_factor *L);
+
+/* In place, in the factor's own (permuted) order: y := L^-1 y, and
+ * y := L'^-1 y. */
+void gw_super_lsolve(const cholmod_factor *L, double *y);
+void gw_super_ltsolve(const cholmod_factor *L, double *y);
+
+/* x = A^-1 b for A = P' L L' P.  work: L->n doubles.  x and b may not
+ * alias.  Returns 0, or -1 when L is not such a factor. */
 int gw_super_solve(const cholmod_factor *L, const double *b, double *x, double *work);
 
 #endif
