@@ -24,70 +24,18 @@
 #include <stdlib.h>
 #include <cmocka.h>
 
-#include "solver/flowfield.h"
-#include "solver/problem.h"
-#include "solver/solve.h"
 #include "solver/track.h"
+#include "fixture_wellfield.h"
 
-static const double PI = 3.14159265358979323846;
-static const double DX = 10.0;                /* m */
-static const double K = 10.0, B = 10.0, POR = 0.25;
 static const double QREG = 0.01;              /* regional Darcy flux, m/d, eastward */
 static const double QW = 50.0;                /* pumping, m3/d */
 
-typedef struct {
-    gw_problem *p;
-    gw_solution sol;
-    gw_flowfield ff;
-    int wcell;
-} model;
-
-/* Head of uniform eastward flow plus a well at the origin (Javandel and
- * Tsang 1986 potential, divided by T). */
-static double head_jt(double x, double y, double qreg, double qw)
+/* Uniform eastward flow qreg plus, when qw is not 0, one well at the origin
+ * in the centre of a cell: west and east columns, 2 hh + 1 rows. */
+static void build_jt(model *m, int west, int east, int hh, double qreg, double qw)
 {
-    return 100.0 - qreg / K * x + qw / (4.0 * PI * K * B) * log(x * x + y * y);
-}
-
-/* Grid of (2 hw + 1) x (2 hh + 1) cells (plus `west` extra columns) with the
- * well at the origin, in the centre of a cell. */
-static void build(model *m, int west, int east, int hh, double qreg, double qw)
-{
-    gw_grid g = {.nx = west + east + 1, .ny = 2 * hh + 1, .dx = DX, .dy = DX};
-    g.x0 = -(west + 0.5) * DX;
-    g.y0 = -(hh + 0.5) * DX;
-    gw_error err = {{0}};
-    m->p = gw_problem_new(&g, GW_CONFINED, &err);
-    assert_non_null(m->p);
-    int fb = gw_problem_add_feature(m->p, "Far field", GW_FEAT_FIXED_HEAD, &err);
-    int fw = gw_problem_add_feature(m->p, "Supply well", GW_FEAT_WELL, &err);
-    assert_true(fb > 0 && fw > 0);
-    for (int r = 0; r < g.ny; r++)
-        for (int c = 0; c < g.nx; c++) {
-            int k = r * g.nx + c;
-            m->p->k[k] = K;
-            m->p->thick[k] = B;
-            m->p->porosity[k] = POR;
-            if (r == 0 || c == 0 || r == g.ny - 1 || c == g.nx - 1) {
-                m->p->fixed[k] = head_jt(gw_grid_xc(&g, c), gw_grid_yc(&g, r), qreg, qw);
-                m->p->fixed_feature[k] = fb;
-            }
-        }
-    m->wcell = hh * g.nx + west;
-    if (qw != 0.0) {
-        gw_well w = {.cell = m->wcell, .feature = fw, .rate = qw, .x = 0.0, .y = 0.0};
-        assert_int_equal(gw_problem_add_well(m->p, &w, &err), 0);
-    }
-    m->sol = (gw_solution){0};
-    if (gw_solve(m->p, NULL, &m->sol, &err) != 0) fail_msg("solve: %s", err.msg);
-    if (gw_flowfield_compute(m->p, &m->sol, &m->ff, &err) != 0) fail_msg("flow field: %s", err.msg);
-}
-
-static void drop(model *m)
-{
-    gw_flowfield_free(&m->ff);
-    gw_solution_free(&m->sol);
-    gw_problem_free(m->p);
+    field fd = {.qreg = qreg, .qw = qw, .nw = qw != 0.0};
+    build(m, &fd, west, east, hh, hh);
 }
 
 static double t_axis(double x, double a)
@@ -99,7 +47,7 @@ static void test_axis_travel_time(void **state)
 {
     (void)state;
     model m;
-    build(&m, 160, 60, 50, QREG, QW);
+    build_jt(&m, 160, 60, 50, QREG, QW);
     const double a = QW / (2.0 * PI * B * QREG);
     gw_track_options o;
     gw_track_options_default(&o);
@@ -114,7 +62,7 @@ static void test_axis_travel_time(void **state)
                       xs[i], r.time, t_an, (r.time - t_an) / t_an, gw_track_end_name(r.end),
                       r.end_fraction);
         assert_int_equal(r.end, GW_END_SINK);
-        assert_int_equal(r.cell, m.wcell);
+        assert_int_equal(r.cell, m.p->wells[0].cell);
         assert_true(r.feature == m.p->wells[0].feature);
         /* Closed form from the Javandel and Tsang (1986) potential: 2 %. */
         if (xs[i] >= 100.0) assert_true(fabs(r.time - t_an) < 0.02 * t_an);
@@ -127,7 +75,7 @@ static void test_uniform_flow_exact(void **state)
     (void)state;
     /* No well: the flow is uniform, so time = n L / q exactly (Darcy). */
     model m;
-    build(&m, 40, 40, 10, QREG, 0.0);
+    build_jt(&m, 40, 40, 10, QREG, 0.0);
     gw_track_options o;
     gw_track_options_default(&o);
     o.max_time = 10000.0;
@@ -147,7 +95,7 @@ static void test_backward_retraces_forward(void **state)
 {
     (void)state;
     model m;
-    build(&m, 160, 60, 50, QREG, QW);
+    build_jt(&m, 160, 60, 50, QREG, QW);
     gw_error err = {{0}};
     gw_track_options o;
     gw_track_options_default(&o);
@@ -187,7 +135,7 @@ static void test_step_independence(void **state)
 {
     (void)state;
     model m;
-    build(&m, 160, 60, 50, QREG, QW);
+    build_jt(&m, 160, 60, 50, QREG, QW);
     gw_error err = {{0}};
     gw_track_options o;
     gw_track_options_default(&o);
@@ -411,7 +359,7 @@ static void test_cell_table_same_paths(void **state)
     /* Well in uniform flow: forward and backward, with and without a time
      * limit, from a lattice of starts around the well. */
     model m;
-    build(&m, 60, 30, 25, QREG, QW);
+    build_jt(&m, 60, 30, 25, QREG, QW);
     int ends[GW_END_MAX_STEPS + 1] = {0};
     for (int back = 0; back < 2; back++) {
         gw_track_options o;
