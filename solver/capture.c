@@ -323,23 +323,31 @@ typedef struct {
     int np, pcap;
 } lattice;
 
-static int inside_point(lattice *L, double x, double y, double tlim, gw_error *err)
+/* Bisection of crossing pt: halve the lattice edge between its inside and
+ * outside nodes `refine` times by the caller's test (1 in, 0 out, -1 on
+ * error) and put the point in the middle of the last interval (writes
+ * only px[pt], py[pt]). */
+typedef int (*point_test)(void *ctx, double x, double y, gw_error *err);
+
+static int bisect_crossing(lattice *L, long pt, point_test inside, void *ctx, gw_error *err)
 {
-    gw_track_result r = {0};
-    if (tlim == HUGE_VAL) {
-        if (gw_track(L->f, x, y, &L->topt, &r, err) != 0)
+    int a = L->pa[pt], b = L->pb[pt];
+    double ax = L->xs[a % L->NX], ay = L->ys[a / L->NX];
+    double bx = L->xs[b % L->NX], by = L->ys[b / L->NX];
+    for (int k = 0; k < L->refine; k++) {
+        double mx = 0.5 * (ax + bx), my = 0.5 * (ay + by);
+        int in = inside(ctx, mx, my, err);
+        if (in < 0)
             return -1;
-        return r.end == GW_END_STOP_CELL && (r.stop_value == CL_WELL || r.stop_value == CL_IN);
+        if (in) { ax = mx; ay = my; } else { bx = mx; by = my; }
     }
-    gw_track_options o = L->ttopt;
-    o.max_time = tlim * (1.0 + 1e-9);
-    if (gw_track(L->f, x, y, &o, &r, err) != 0)
-        return -1;
-    return r.end == GW_END_STOP_CELL && r.stop_value == CL_WELL && r.time <= tlim;
+    L->px[pt] = 0.5 * (ax + bx);
+    L->py[pt] = 0.5 * (ay + by);
+    return 0;
 }
 
 /* New boundary point on the edge from lattice node a (inside) to b
- * (outside); its position is found later by bisect_point. */
+ * (outside); its position is found later by bisect_crossing. */
 static int add_point(lattice *L, int a, int b, gw_error *err)
 {
     if (L->np == L->pcap) {
@@ -372,25 +380,23 @@ typedef struct {
     double tlim;
 } bisect_job;
 
-/* Crossing point i: bisect its lattice edge (parallel item; writes only
- * px[i], py[i]). */
-static int bisect_point(void *ctx, long i, gw_error *err)
+/* Whether the path from (x, y) reaches the well within the job's time. */
+static int within_time(void *ctx, double x, double y, gw_error *err)
 {
     const bisect_job *j = ctx;
-    lattice *L = j->L;
-    int a = L->pa[i], b = L->pb[i];
-    double ax = L->xs[a % L->NX], ay = L->ys[a / L->NX];
-    double bx = L->xs[b % L->NX], by = L->ys[b / L->NX];
-    for (int k = 0; k < L->refine; k++) {
-        double mx = 0.5 * (ax + bx), my = 0.5 * (ay + by);
-        int in = inside_point(L, mx, my, j->tlim, err);
-        if (in < 0)
-            return -1;
-        if (in) { ax = mx; ay = my; } else { bx = mx; by = my; }
-    }
-    L->px[i] = 0.5 * (ax + bx);
-    L->py[i] = 0.5 * (ay + by);
-    return 0;
+    gw_track_options o = j->L->ttopt;
+    o.max_time = j->tlim * (1.0 + 1e-9);
+    gw_track_result r = {0};
+    if (gw_track(j->L->f, x, y, &o, &r, err) != 0)
+        return -1;
+    return r.end == GW_END_STOP_CELL && r.stop_value == CL_WELL && r.time <= j->tlim;
+}
+
+/* Crossing i of a travel-time zone edge (parallel item). */
+static int bisect_point(void *ctx, long i, gw_error *err)
+{
+    bisect_job *j = ctx;
+    return bisect_crossing(j->L, i, within_time, j, err);
 }
 
 /* ---- Known paths ---------------------------------------------------------
@@ -560,24 +566,25 @@ done:
     return rc;
 }
 
-/* Bisect crossing pt of a time-unlimited zone edge (writes px, py). */
+typedef struct {
+    const lattice *L;
+    struct known_slot *slot;
+} edge_test;
+
+/* Whether the path from (x, y) reaches the well, with the known paths' help. */
+static int reaches_well(void *ctx, double x, double y, gw_error *err)
+{
+    const edge_test *t = ctx;
+    gw_track_result r;
+    return known_track(t->L, x, y, t->slot, &r, err);
+}
+
+/* Bisect crossing pt of a time-unlimited zone edge (batch item). */
 static int bisect_edge(void *ctx, long pt, struct known_slot *slot, gw_error *err)
 {
     lattice *L = ctx;
-    int a = L->pa[pt], b = L->pb[pt];
-    double ax = L->xs[a % L->NX], ay = L->ys[a / L->NX];
-    double bx = L->xs[b % L->NX], by = L->ys[b / L->NX];
-    for (int k = 0; k < L->refine; k++) {
-        double mx = 0.5 * (ax + bx), my = 0.5 * (ay + by);
-        gw_track_result r;
-        int in = known_track(L, mx, my, slot, &r, err);
-        if (in < 0)
-            return -1;
-        if (in) { ax = mx; ay = my; } else { bx = mx; by = my; }
-    }
-    L->px[pt] = 0.5 * (ax + bx);
-    L->py[pt] = 0.5 * (ay + by);
-    return 0;
+    edge_test t = {.L = L, .slot = slot};
+    return bisect_crossing(L, pt, reaches_well, &t, err);
 }
 
 /* Downstream rank of crossing pt (the midpoint of its lattice edge). */
