@@ -17,16 +17,30 @@ static void *global_symbol(const char *name)
     return sym;
 }
 
+/* The libraries' functions, looked up once per process. */
+static void (*omp_set_levels)(int);
+static int (*blas_get_threads)(void);
+static void (*blas_set_threads)(int);
+static pthread_once_t lookup_once = PTHREAD_ONCE_INIT;
+
+static void lookup(void)
+{
+    void *sym = global_symbol("omp_set_max_active_levels");
+    if (sym)
+        memcpy(&omp_set_levels, &sym, sizeof omp_set_levels);   /* object -> function pointer */
+    void *get = global_symbol("openblas_get_num_threads");
+    void *set = global_symbol("openblas_set_num_threads");
+    if (get && set) {
+        memcpy(&blas_get_threads, &get, sizeof blas_get_threads);
+        memcpy(&blas_set_threads, &set, sizeof blas_set_threads);
+    }
+}
+
 static void serialize_openmp(void)
 {
-    if (getenv("OMP_MAX_ACTIVE_LEVELS"))
-        return;
-    void *sym = global_symbol("omp_set_max_active_levels");
-    if (sym) {
-        void (*set_levels)(int);
-        memcpy(&set_levels, &sym, sizeof set_levels);   /* object -> function pointer */
-        set_levels(0);
-    }
+    pthread_once(&lookup_once, lookup);
+    if (!getenv("OMP_MAX_ACTIVE_LEVELS") && omp_set_levels)
+        omp_set_levels(0);
 }
 
 static pthread_once_t openmp_once = PTHREAD_ONCE_INIT;
@@ -38,16 +52,11 @@ void gw_lib_threads_init(void)
 
 int gw_blas_threads(int n)
 {
-    void *get = global_symbol("openblas_get_num_threads");
-    void *set = global_symbol("openblas_set_num_threads");
-    if (!get || !set)
+    pthread_once(&lookup_once, lookup);
+    if (!blas_get_threads)
         return 0;
-    int (*get_fn)(void);
-    void (*set_fn)(int);
-    memcpy(&get_fn, &get, sizeof get_fn);
-    memcpy(&set_fn, &set, sizeof set_fn);
-    int prev = get_fn();
+    int prev = blas_get_threads();
     if (n > 0 && n != prev)
-        set_fn(n);
+        blas_set_threads(n);
     return prev;
 }
