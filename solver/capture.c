@@ -162,7 +162,7 @@ static void share_from_order(const gw_flowfield *f, const flow_graph *fg,
         long from = s == 0 ? 0 : norder - ncycle;
         for (long i = from; i < norder; i++) {
             size_t k = (size_t)fg->order[i];
-            if (mark && !mark[k])
+            if (!mark[k])
                 continue;   /* not upstream of the feature: share 0 */
             double out = gout[k], num = fout[k];
             for (long e = fg->ptr[i]; e < fg->ptr[i + 1]; e++) {
@@ -188,27 +188,6 @@ static void feature_out(const gw_flowfield *f, int feature, double *fout, size_t
     for (int i = 0; i < f->nexch; i++)
         if (f->exch[i].feature == feature && f->exch[i].q < 0.0)
             fout[f->exch[i].cell] -= f->exch[i].q;
-}
-
-int gw_capture_share(const gw_flowfield *f, int feature, double *w, gw_error *err)
-{
-    size_t nc = gw_grid_ncells(&f->grid);
-    double *fout = malloc(nc * sizeof *fout);
-    flow_graph fg = {0};
-    int rc = -1;
-    if (!fout) {
-        gw_fail(err, "out of memory computing capture shares");
-        goto done;
-    }
-    feature_out(f, feature, fout, nc);
-    if (flow_graph_build(f, &fg, err) != 0)
-        goto done;
-    share_from_order(f, &fg, f->sink, fout, NULL, w);
-    rc = 0;
-done:
-    free(fout);
-    flow_graph_free(&fg);
-    return rc;
 }
 
 /* ---- Where the tracking rules send each cell's water ------------------- */

@@ -111,9 +111,4 @@ int gw_capture_compute(const gw_problem *p, const gw_flowfield *f,
                        const gw_capture_options *o, gw_capture *out, gw_error *err);
 void gw_capture_free(gw_capture *c);
 
-/* Share of the water passing through each cell that ends in feature
- * `feature` (flux-weighted partition, see above); w has length ncells,
- * 0 in inactive cells.  Useful as a "probability of capture" map. */
-int gw_capture_share(const gw_flowfield *f, int feature, double *w, gw_error *err);
-
 #endif

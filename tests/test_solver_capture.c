@@ -32,6 +32,7 @@
 #include <cmocka.h>
 
 #include "solver/capture.h"
+#include "solver/catchment.h"
 #include "fixture_wellfield.h"
 
 /* Extent of the ring's crossings with the vertical line x = X. */
@@ -245,7 +246,7 @@ static void test_recharge_fed_well(void **state)
     /* The share map is 1 in the well cell and falls to 0 far away. */
     double *wsh = malloc(gw_grid_ncells(&g) * sizeof *wsh);
     assert_non_null(wsh);
-    assert_int_equal(gw_capture_share(&ff, fw, wsh, &err), 0);
+    assert_int_equal(gw_catchment_share(p, &ff, fw, wsh, &err), 0);
     double tot = 0.0;
     for (size_t k = 0; k < gw_grid_ncells(&g); k++)
         tot += wsh[k] * R * g.dx * g.dy;
