@@ -27,7 +27,7 @@ struct gw_solver {
     cholmod_factor *L;     /* whole-grid factor, or NULL when split */
     gw_split *split;       /* two halves side by side (split_factor.h), or NULL */
     int planned;           /* the factorization has been planned and analysed */
-    double *xbuf, *work;   /* n each: solution and scratch of the solves */
+    double *xbuf, *work;   /* n each: solution of the solves; scratch of the whole-grid one */
     cholmod_dense *b;
     double *x_factored;    /* A values at the last numeric factorization */
     int have_factor;
@@ -397,8 +397,8 @@ static int plan(gw_solver *s, gw_error *err)
             return -1;
     }
     s->xbuf = malloc((size_t)s->n * sizeof *s->xbuf);
-    s->work = malloc((size_t)s->n * sizeof *s->work);
-    if (!s->xbuf || !s->work)
+    s->work = s->split ? NULL : malloc((size_t)s->n * sizeof *s->work);
+    if (!s->xbuf || (!s->split && !s->work))
         return gw_fail(err, "out of memory setting up the solver");
     if (s->split) {
         snprintf(s->describe, sizeof s->describe,
