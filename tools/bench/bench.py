@@ -77,6 +77,13 @@ def timed(cmd, env=None):
     return p.stdout, wall, (int(m.group(1)) / 1024.0 if m else float("nan"))
 
 
+def median_of(n, run_once, key):
+    """Run run_once() n times (at least once); return the run whose key is
+    the median, and every run sorted by key."""
+    runs = sorted((run_once() for _ in range(max(1, n))), key=key)
+    return runs[len(runs) // 2], runs
+
+
 def machine():
     cpu = "unknown"
     try:
@@ -116,13 +123,12 @@ def run_size(args, cells):
                    check=True)
     # 2. the timed end-to-end runs (the median one is reported, with its stages)
     reps = args.repeat if cells <= args.scipy_max * 1e6 else 1
-    runs = []
-    for _ in range(reps):
+
+    def gw_run():
         _, wall, peak = timed([gw, "run", model, "--out", out, "--quiet"])
-        rep = json.load(open(os.path.join(out, "report.json")))
-        runs.append((wall, peak, rep))
-    runs.sort(key=lambda t: t[0])
-    wall, peak, rep = runs[len(runs) // 2]
+        return wall, peak, json.load(open(os.path.join(out, "report.json")))
+
+    (wall, peak, rep), runs = median_of(reps, gw_run, key=lambda t: t[0])
     sv = rep["solver"]
     sec = {k: float(v) for k, v in sv.get("seconds", {}).items()}
     row = {"cells": rep["grid"]["active_cells"], "wall": wall, "peak_mb": max(t[1] for t in runs),
@@ -133,14 +139,14 @@ def run_size(args, cells):
     row["cholmod"] = {k: num(v) for k, v in kv(o).items()}
     # 4. the reference library
     if cells <= args.scipy_max * 1e6:
-        sps = []
-        for _ in range(reps):
+        def scipy_run():
             o, _, sp_peak = timed([PY, "-c", SCIPY_SOLVE, prefix])
             d = {k: num(v) for k, v in kv(o).items()}
             d["process_peak_mb"] = sp_peak
-            sps.append(d)
-        sps.sort(key=lambda d: d["solve"])
-        row["scipy"] = dict(sps[len(sps) // 2])
+            return d
+
+        med, sps = median_of(reps, scipy_run, key=lambda d: d["solve"])
+        row["scipy"] = dict(med)
         row["scipy"]["solves"] = [d["solve"] for d in sps]
     if not args.keep:
         for suffix in (".mtx", ".rhs.mtx", ".cells.txt"):
@@ -280,12 +286,12 @@ def main():
         mach["blas_loaded"] = rows[-1]["cholmod"].get("blas", "unknown")
 
     print("bench: sweep member and unconfined runs ...", flush=True)
-    sweeps = []
-    for _ in range(max(1, args.repeat)):
+    def sweep_run():
         o, _, _ = timed([os.path.join(args.build, "tools", "bench", "sweep_bench"), str(int(args.sweep_cells * 1e6))])
-        sweeps.append({k: num(v) for k, v in kv(o).items()})
-    sweeps.sort(key=lambda d: d["ratio"])
-    sweep = dict(sweeps[len(sweeps) // 2])   # the median pair of runs
+        return {k: num(v) for k, v in kv(o).items()}
+
+    med, sweeps = median_of(args.repeat, sweep_run, key=lambda d: d["ratio"])
+    sweep = dict(med)   # the median pair of runs
     sweep["ratios"] = [d["ratio"] for d in sweeps]
     o, _, _ = timed([os.path.join(args.build, "tools", "bench", "sweep_bench"), "250000", "unconfined"])
     u = {k: num(v) for k, v in kv(o).items()}
