@@ -8,8 +8,8 @@
  * minus Ass is the separator's dense Schur complement, factorized by
  * LAPACK.  A solve is one forward and one backward pass per half (side by
  * side again) around a dense solve on the separator: block Gaussian
- * elimination (e.g. Golub and Van Loan, Matrix Computations, sec. 4.5 on
- * block LU), exact in exact arithmetic.
+ * elimination (e.g. Golub and Van Loan, Matrix Computations, on block LU;
+ * cited from memory), exact in exact arithmetic.
  *
  * Why: CHOLMOD 3 factorizes the elimination tree one supernode after the
  * other, and the supernodes of a two-dimensional grid are mostly too small

@@ -2,7 +2,7 @@
  * against the whole-grid factorization of the same problem.
  *
  * Block Gaussian elimination on the separating column is exact in exact
- * arithmetic (e.g. Golub and Van Loan, Matrix Computations, sec. 4.5), so
+ * arithmetic (e.g. Golub and Van Loan, Matrix Computations, from memory), so
  * the two must give the same heads to round-off, and the water balance
  * (Darcy flow and continuity) must close to round-off either way.  The
  * published verification models run again with the split forced
